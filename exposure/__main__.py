@@ -1,0 +1,3 @@
+from exposure.cli import main
+
+main()

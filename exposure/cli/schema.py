@@ -1,0 +1,7 @@
+"""`exposure schema` (not built yet)."""
+
+import typer
+
+
+def register(app: typer.Typer) -> None:
+    """Add this module's commands to *app* (none yet)."""

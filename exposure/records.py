@@ -1,0 +1,477 @@
+"""The site record: a strict pydantic v2 model of one site and every emitter on it.
+
+Keys are fixed by ``shared/INTERFACE.md``; every key holding a quantity carries its unit.
+Unknown keys are errors (``extra="forbid"``) so that a typo can never silently drop a
+value in a safety calculation; text where a number belongs is refused (strict mode).
+
+This module validates only. Reading files is ``exposure.loader``'s job, and the
+conversion into the models' ``Antenna`` lives here as :meth:`EmitterBase.to_antenna`.
+"""
+
+from __future__ import annotations
+
+import math
+from typing import Annotated, Literal, Union
+
+from annotated_types import Len
+from pydantic import (
+    BaseModel,
+    ConfigDict,
+    Field,
+    StringConstraints,
+    field_validator,
+    model_validator,
+)
+
+from exposure.antenna import Antenna, PatternCuts
+from exposure.units import DBD_TO_DBI, ERP_TO_EIRP, db_to_linear, dbm_to_watts, wavelength_m
+
+SCHEMA_VERSION = 1
+
+Standard = Literal["fcc", "icnirp-2020", "icnirp-1998", "canada-sc6"]
+Reflection = Literal["none", "typical", "full"]
+Evaluation = Literal["peak", "spatial-average"]
+Access = Literal["public", "occupational", "none"]
+
+ACCESS_TIER = {"public": "general_public", "occupational": "occupational"}
+"""The limit tier that governs a surface of each access class ('none' is not judged)."""
+
+# Plausibility bounds. A gain outside them is refused outright; the softer test against
+# the beamwidths is in `gain_problem`.
+MAX_GAIN_DBI = 60.0
+MIN_GAIN_DBI = -20.0
+BEAMWIDTH_DIRECTIVITY_DEG2 = 41_253.0
+"""4π sr in square degrees: D ≈ 41253/(θh·θv), common practice."""
+GAIN_REFUSE_MARGIN_DB = 6.0
+GAIN_WARN_MARGIN_DB = 1.5
+
+Positive = Annotated[float, Field(gt=0)]
+NonNegative = Annotated[float, Field(ge=0)]
+Coordinate = Annotated[float, Field(ge=-1e5, le=1e5)]
+Beamwidth = Annotated[float, Field(gt=0, le=360)]
+Tilt = Annotated[float, Field(ge=-90, le=90)]
+Azimuth = Annotated[float, Field(ge=-360, le=360)]
+Name = Annotated[str, StringConstraints(strip_whitespace=True, min_length=1, max_length=200)]
+Identifier = Annotated[
+    str, StringConstraints(pattern=r"^[a-z0-9_-]+$", min_length=1, max_length=80)
+]
+EmitterId = Annotated[
+    str, StringConstraints(pattern=r"^[A-Za-z0-9_.-]+$", min_length=1, max_length=40)
+]
+Point2 = Annotated[list[Coordinate], Len(2, 2)]
+
+
+class Strict(BaseModel):
+    """Base of every record model: no unknown keys, no NaN or infinity, no coercion."""
+
+    model_config = ConfigDict(extra="forbid", strict=True, allow_inf_nan=False, frozen=True)
+
+
+class SiteInfo(Strict):
+    """The ``[site]`` table: identity and evaluation settings."""
+
+    id: Identifier = Field(description="[a-z0-9_-]+ ; used for output file names")
+    name: Name
+    standard: Standard = Field("fcc", description="Default limit set.")
+    limits_file: str | None = Field(
+        None, description="A local code's limit table, relative to the site file; overrides standard."
+    )
+    ground_reflection: Reflection = Field(
+        "typical", description="none (x1) | typical (power x2.56) | full (x4), OET 65."
+    )
+    body_height_m: Annotated[float, Field(gt=0, le=3.0)] = 2.0
+    evaluation: Evaluation = "peak"
+    grid_m: Annotated[float, Field(ge=0.05, le=10.0)] = 0.25
+    notes: str = ""
+
+
+class Surface(Strict):
+    """A walking surface where people can stand."""
+
+    name: Name
+    access: Access
+    elevation_m: Coordinate = 0.0
+    outline: Annotated[list[Point2], Len(3, 500)]
+
+    @field_validator("outline")
+    @classmethod
+    def _simple_polygon(cls, outline: list[list[float]]) -> list[list[float]]:
+        if abs(polygon_area(outline)) < 1e-6:
+            raise ValueError("outline encloses no area")
+        crossing = first_self_intersection(outline)
+        if crossing is not None:
+            i, j = crossing
+            raise ValueError(f"outline crosses itself (edge {i} meets edge {j})")
+        return outline
+
+
+class WorkPosition(Strict):
+    """A place a worker must reach (standing level ``z_m``)."""
+
+    name: Name
+    x_m: Coordinate
+    y_m: Coordinate
+    z_m: Coordinate = 0.0
+
+
+class EmitterBase(Strict):
+    """Keys common to every emitter kind."""
+
+    id: EmitterId
+    operator: Name
+    frequency_mhz: Annotated[float, Field(gt=0, le=300_000)]
+    power_w: Positive | None = None
+    power_dbm: Annotated[float, Field(ge=-30, le=100)] | None = None
+    ports: Annotated[int, Field(ge=1, le=256)] = 1
+    line_loss_db: Annotated[float, Field(ge=0, le=30)] = 0.0
+    gain_dbi: Annotated[float, Field(ge=MIN_GAIN_DBI, le=MAX_GAIN_DBI)] | None = None
+    gain_dbd: Annotated[float, Field(ge=MIN_GAIN_DBI - DBD_TO_DBI, le=MAX_GAIN_DBI - DBD_TO_DBI)] | None = None
+    eirp_w: Positive | None = Field(None, description="Instead of power, gain and line loss.")
+    x_m: Coordinate
+    y_m: Coordinate
+    z_m: Coordinate
+    duty_factor: Annotated[float, Field(gt=0, le=1)] = 1.0
+    pattern_file: str | None = Field(
+        None, description="CSV of tabulated cuts (plane,angle_deg,attenuation_db), relative to the site file."
+    )
+
+    # --- alternatives -----------------------------------------------------------------
+    @model_validator(mode="after")
+    def _one_of_each(self):
+        problems = []
+        if self.eirp_w is not None:
+            given = [k for k in ("power_w", "power_dbm", "gain_dbi", "gain_dbd") if getattr(self, k) is not None]
+            if given:
+                problems.append(f"eirp_w replaces power, gain and line loss; remove {', '.join(given)}")
+            if self.line_loss_db:
+                problems.append("eirp_w replaces power, gain and line loss; remove line_loss_db")
+        else:
+            if (self.power_w is None) == (self.power_dbm is None):
+                problems.append("give exactly one of power_w or power_dbm (or eirp_w)")
+            if self.gain_dbi is not None and self.gain_dbd is not None:
+                problems.append("give exactly one of gain_dbi or gain_dbd, not both")
+            elif self.gain_dbi is None and self.gain_dbd is None and not self._gain_derivable():
+                problems.append("give exactly one of gain_dbi or gain_dbd (or eirp_w)")
+        if problems:
+            raise ValueError("; ".join(problems))
+        problem = self.gain_problem(refuse=True)
+        if problem:
+            raise ValueError(problem)
+        return self
+
+    def _gain_derivable(self) -> bool:
+        return False
+
+    # --- derived values ---------------------------------------------------------------
+    @property
+    def transmitter_power_w(self) -> float | None:
+        """Transmitter output per port [W], or None when the record gives EIRP."""
+        if self.power_w is not None:
+            return self.power_w
+        if self.power_dbm is not None:
+            return float(dbm_to_watts(self.power_dbm))
+        return None
+
+    @property
+    def peak_gain_dbi(self) -> float:
+        """Peak gain [dBi] as given (dBd + 2.15), or derived where the record allows."""
+        if self.gain_dbi is not None:
+            return self.gain_dbi
+        if self.gain_dbd is not None:
+            return self.gain_dbd + DBD_TO_DBI
+        return self.derived_gain_dbi()
+
+    def derived_gain_dbi(self) -> float:
+        """Gain when the record gives none: the beamwidth directivity (conservative for
+        near-field models, which scale with net power = EIRP / gain, only if the real gain
+        is higher, so it is never assumed higher than this)."""
+        return 10 * math.log10(self.beamwidth_directivity())
+
+    def beamwidth_directivity(self) -> float:
+        """Directivity from the half-power beamwidths, D ≈ 41253/(θh·θv) (common practice)."""
+        raise NotImplementedError
+
+    @property
+    def power_reduction(self) -> float:
+        """Enforced power-reduction factor (arrays only; 1 elsewhere)."""
+        return 1.0
+
+    @property
+    def net_power_w(self) -> float:
+        """Power delivered to the antenna at full output [W]: power × ports less line loss."""
+        if self.eirp_w is not None:
+            return self.eirp_w / float(db_to_linear(self.peak_gain_dbi))
+        return self.transmitter_power_w * self.ports * float(db_to_linear(-self.line_loss_db))
+
+    @property
+    def eirp_full_w(self) -> float:
+        """EIRP at full output [W] (before duty and power-reduction factors)."""
+        if self.eirp_w is not None:
+            return self.eirp_w
+        return self.net_power_w * float(db_to_linear(self.peak_gain_dbi))
+
+    @property
+    def erp_full_w(self) -> float:
+        """ERP at full output [W] = EIRP / 1.64 (47 CFR 1.1307(b)(3))."""
+        return self.eirp_full_w / ERP_TO_EIRP
+
+    @property
+    def time_averaging_factor(self) -> float:
+        """Duty factor × power-reduction factor: time-averaged over full power."""
+        return self.duty_factor * self.power_reduction
+
+    @property
+    def eirp_avg_w(self) -> float:
+        """Time-averaged EIRP [W], the value the models use."""
+        return self.eirp_full_w * self.time_averaging_factor
+
+    @property
+    def erp_avg_w(self) -> float:
+        return self.eirp_avg_w / ERP_TO_EIRP
+
+    def gain_problem(self, refuse: bool = False) -> str | None:
+        """Say when the peak gain is more than its beamwidths (or aperture) allow.
+
+        With ``refuse`` only gains beyond the refusal margin are reported (the record is
+        then invalid); without it, those beyond the warning margin (a datasheet to check).
+        """
+        if self.gain_dbi is None and self.gain_dbd is None:
+            return None
+        limit_dbi = 10 * math.log10(self.beamwidth_directivity())
+        margin = GAIN_REFUSE_MARGIN_DB if refuse else GAIN_WARN_MARGIN_DB
+        if self.peak_gain_dbi > limit_dbi + margin:
+            verb = "is impossible" if refuse else "looks too high"
+            return (
+                f"gain {self.peak_gain_dbi:.1f} dBi {verb} for {self._gain_basis()} "
+                f"(directivity about {limit_dbi:.1f} dBi; common practice D ≈ 41253/(θh·θv))"
+            )
+        return None
+
+    def _gain_basis(self) -> str:
+        return "its beamwidths"
+
+    def to_antenna(self, pattern: PatternCuts | None = None) -> Antenna:
+        """The emitter as the field models take it (time-averaged net power)."""
+        return Antenna(
+            id=self.id,
+            kind=self.kind,
+            frequency_mhz=self.frequency_mhz,
+            net_power_w=self.net_power_w * self.time_averaging_factor,
+            gain_dbi=self.peak_gain_dbi,
+            position_m=(self.x_m, self.y_m, self.z_m),
+            pattern=pattern,
+            **self._antenna_fields(),
+        )
+
+    def _antenna_fields(self) -> dict:
+        return {}
+
+
+class _Directional(EmitterBase):
+    azimuth_deg: Azimuth
+    mech_tilt_deg: Tilt = 0.0
+    elec_tilt_deg: Tilt = 0.0
+    h_beamwidth_deg: Beamwidth
+    v_beamwidth_deg: Beamwidth
+    front_to_back_db: Annotated[float, Field(ge=0, le=60)] = 25.0
+    sidelobe_floor_db: Annotated[float, Field(ge=3, le=60)] = 20.0
+    length_m: Annotated[float, Field(gt=0, le=20)]
+
+    def beamwidth_directivity(self) -> float:
+        return BEAMWIDTH_DIRECTIVITY_DEG2 / (self.h_beamwidth_deg * self.v_beamwidth_deg)
+
+    def _antenna_fields(self) -> dict:
+        return dict(
+            azimuth_deg=self.azimuth_deg,
+            mech_tilt_deg=self.mech_tilt_deg,
+            elec_tilt_deg=self.elec_tilt_deg,
+            h_beamwidth_deg=self.h_beamwidth_deg,
+            v_beamwidth_deg=self.v_beamwidth_deg,
+            front_to_back_db=self.front_to_back_db,
+            sidelobe_floor_db=self.sidelobe_floor_db,
+            length_m=self.length_m,
+        )
+
+
+class PanelEmitter(_Directional):
+    """A sector panel antenna."""
+
+    kind: Literal["panel"]
+
+
+class ArrayEmitter(_Directional):
+    """A beam-steering (massive-MIMO) array; its pattern is the envelope over its scan."""
+
+    kind: Literal["array"]
+    h_scan_deg: Annotated[float, Field(ge=0, le=180)] = 0.0
+    v_scan_deg: Annotated[float, Field(ge=0, le=90)] = 0.0
+    power_reduction_factor: Annotated[float, Field(gt=0, le=1)] = Field(
+        1.0,
+        description="Actual-maximum factor F_PR (IEC 62232 practice); holds only where the "
+        "site enforces it, and is then reported as an assumption.",
+    )
+
+    @property
+    def power_reduction(self) -> float:
+        return self.power_reduction_factor
+
+    def _antenna_fields(self) -> dict:
+        return super()._antenna_fields() | dict(h_scan_deg=self.h_scan_deg, v_scan_deg=self.v_scan_deg)
+
+
+class OmniEmitter(EmitterBase):
+    """An omnidirectional collinear antenna."""
+
+    kind: Literal["omni"]
+    mech_tilt_deg: Tilt = 0.0
+    elec_tilt_deg: Tilt = 0.0
+    v_beamwidth_deg: Beamwidth
+    sidelobe_floor_db: Annotated[float, Field(ge=3, le=60)] = 20.0
+    length_m: Annotated[float, Field(gt=0, le=20)]
+
+    def beamwidth_directivity(self) -> float:
+        return BEAMWIDTH_DIRECTIVITY_DEG2 / (360.0 * self.v_beamwidth_deg)
+
+    def _antenna_fields(self) -> dict:
+        return dict(
+            mech_tilt_deg=self.mech_tilt_deg,
+            elec_tilt_deg=self.elec_tilt_deg,
+            h_beamwidth_deg=360.0,
+            v_beamwidth_deg=self.v_beamwidth_deg,
+            sidelobe_floor_db=self.sidelobe_floor_db,
+            length_m=self.length_m,
+        )
+
+
+class DishEmitter(EmitterBase):
+    """A parabolic reflector (microwave link); gain may be derived from its aperture."""
+
+    kind: Literal["dish"]
+    diameter_m: Annotated[float, Field(gt=0, le=30)]
+    aperture_efficiency: Annotated[float, Field(gt=0, le=1)] = 0.55
+    azimuth_deg: Azimuth
+    elevation_deg: Tilt = 0.0
+
+    def _gain_derivable(self) -> bool:
+        return True
+
+    def beamwidth_directivity(self) -> float:
+        """Uniform-aperture directivity (πD/λ)², the most a reflector can have."""
+        return (math.pi * self.diameter_m / float(wavelength_m(self.frequency_mhz))) ** 2
+
+    def derived_gain_dbi(self) -> float:
+        """G = η(πD/λ)², FCC OET Bulletin 65 (1997), aperture antennas."""
+        return 10 * math.log10(self.aperture_efficiency * self.beamwidth_directivity())
+
+    def _gain_basis(self) -> str:
+        return f"a {self.diameter_m:g} m reflector at {self.frequency_mhz:g} MHz"
+
+    def _antenna_fields(self) -> dict:
+        return dict(
+            azimuth_deg=self.azimuth_deg,
+            elevation_deg=self.elevation_deg,
+            diameter_m=self.diameter_m,
+            aperture_efficiency=self.aperture_efficiency,
+        )
+
+
+Emitter = Annotated[
+    Union[PanelEmitter, OmniEmitter, DishEmitter, ArrayEmitter], Field(discriminator="kind")
+]
+
+
+class SiteRecord(Strict):
+    """One site: its settings, walking surfaces, emitters and work positions."""
+
+    model_config = ConfigDict(
+        title="Site record",
+        json_schema_extra={"description": "RF exposure site record, schema_version 1 (exposure)."},
+    )
+
+    schema_version: Literal[1] = Field(description="Record format version; only 1 is supported.")
+    site: SiteInfo
+    surfaces: Annotated[list[Surface], Len(1, 200)]
+    emitters: Annotated[list[Emitter], Len(1, 500)]
+    work_positions: list[WorkPosition] = []
+
+    @model_validator(mode="after")
+    def _unique_names(self):
+        problems = []
+        for label, values in (
+            ("emitter id", [e.id for e in self.emitters]),
+            ("surface name", [s.name for s in self.surfaces]),
+            ("work position name", [w.name for w in self.work_positions]),
+        ):
+            seen: set[str] = set()
+            for v in values:
+                if v in seen:
+                    problems.append(f"duplicate {label} {v!r}")
+                seen.add(v)
+        if problems:
+            raise ValueError("; ".join(problems))
+        return self
+
+    def warnings(self) -> list[str]:
+        """Soft findings a reviewer should see (valid, but worth a second look)."""
+        out = []
+        for i, e in enumerate(self.emitters):
+            problem = e.gain_problem()
+            if problem:
+                out.append(f"emitters[{i}] ({e.id}).gain: {problem}; check the datasheet")
+            if e.eirp_w is not None and e.gain_dbi is None and e.gain_dbd is None:
+                out.append(
+                    f"emitters[{i}] ({e.id}): eirp_w without gain; near-field models take "
+                    f"gain {e.peak_gain_dbi:.1f} dBi from the {'aperture' if e.kind == 'dish' else 'beamwidths'}"
+                )
+        return out
+
+
+# --- polygon helpers (plain Python: records are small) ------------------------------------
+
+
+def polygon_area(outline) -> float:
+    """Signed area of a polygon [m²] (shoelace formula), positive anticlockwise."""
+    n = len(outline)
+    return 0.5 * sum(
+        outline[i][0] * outline[(i + 1) % n][1] - outline[(i + 1) % n][0] * outline[i][1]
+        for i in range(n)
+    )
+
+
+def first_self_intersection(outline) -> tuple[int, int] | None:
+    """The first pair of non-adjacent edges that touch or cross, or None."""
+    n = len(outline)
+    edges = [(outline[i], outline[(i + 1) % n]) for i in range(n)]
+    for i in range(n):
+        for j in range(i + 1, n):
+            if j == i + 1 or (i == 0 and j == n - 1):
+                continue  # neighbours share a vertex by construction
+            if _segments_touch(*edges[i], *edges[j]):
+                return i, j
+    return None
+
+
+def _segments_touch(p1, p2, q1, q2) -> bool:
+    def orient(a, b, c) -> float:
+        return (b[0] - a[0]) * (c[1] - a[1]) - (b[1] - a[1]) * (c[0] - a[0])
+
+    def on_segment(a, b, c) -> bool:
+        return min(a[0], b[0]) <= c[0] <= max(a[0], b[0]) and min(a[1], b[1]) <= c[1] <= max(a[1], b[1])
+
+    d1, d2 = orient(q1, q2, p1), orient(q1, q2, p2)
+    d3, d4 = orient(p1, p2, q1), orient(p1, p2, q2)
+    if ((d1 > 0) != (d2 > 0)) and ((d3 > 0) != (d4 > 0)) and d1 and d2 and d3 and d4:
+        return True
+    return (
+        (d1 == 0 and on_segment(q1, q2, p1))
+        or (d2 == 0 and on_segment(q1, q2, p2))
+        or (d3 == 0 and on_segment(p1, p2, q1))
+        or (d4 == 0 and on_segment(p1, p2, q2))
+    )
+
+
+def json_schema() -> dict:
+    """JSON Schema (draft 2020-12) of the site record."""
+    schema = SiteRecord.model_json_schema()
+    schema["$schema"] = "https://json-schema.org/draft/2020-12/schema"
+    return schema

@@ -96,12 +96,12 @@ class Surface(Strict):
     @field_validator("outline")
     @classmethod
     def _simple_polygon(cls, outline: list[list[float]]) -> list[list[float]]:
-        if abs(polygon_area(outline)) < 1e-6:
-            raise ValueError("outline encloses no area")
         crossing = first_self_intersection(outline)
         if crossing is not None:
             i, j = crossing
             raise ValueError(f"outline crosses itself (edge {i} meets edge {j})")
+        if abs(polygon_area(outline)) < 1e-6:
+            raise ValueError("outline encloses no area")
         return outline
 
 

@@ -56,7 +56,7 @@ class _GuardedGroup(TyperGroup):
             if _debug(ctx):
                 raise
             raise fail(exc.lines()) from None
-        except (click.exceptions.Exit, click.exceptions.Abort, click.ClickException):
+        except (typer.Exit, typer.Abort, click.exceptions.Exit, click.exceptions.Abort, click.ClickException):
             raise
         except KeyboardInterrupt:
             typer.echo("interrupted", err=True)

@@ -1,7 +1,17 @@
-"""`exposure schema` (not built yet)."""
+"""``exposure schema``: the JSON Schema of the site record."""
+
+from __future__ import annotations
 
 import typer
 
 
+def schema() -> None:
+    """Print the JSON Schema (draft 2020-12) of the site record."""
+    from exposure.cli.common import print_json
+    from exposure.records import json_schema
+
+    print_json(json_schema())
+
+
 def register(app: typer.Typer) -> None:
-    """Add this module's commands to *app* (none yet)."""
+    app.command("schema")(schema)

@@ -1,7 +1,94 @@
-"""`exposure validate` (not built yet)."""
+"""``exposure validate SITE...``: check records and summarise their emitters."""
+
+from __future__ import annotations
+
+from pathlib import Path
+from typing import Annotated
 
 import typer
 
+from exposure.cli.common import JsonOption, LimitsFileOption, StandardOption, console, fmt, print_json
+
+
+def validate(
+    sites: Annotated[list[Path], typer.Argument(help="Site records (.toml or .json).", show_default=False)],
+    standard: StandardOption = None,
+    limits_file: LimitsFileOption = None,
+    json_out: JsonOption = False,
+) -> None:
+    """Check site records; print each emitter with its EIRP and ERP, and any warnings."""
+    from exposure.errors import InputError
+    from exposure.loader import load_site
+
+    from exposure.cli.app import fail
+
+    failed: list[str] = []
+    summaries = []
+    for path in sites:
+        try:
+            site = load_site(path, standard=standard, limits_file=limits_file)
+        except InputError as exc:
+            failed.extend(exc.lines())
+            continue
+        summaries.append(_summary(site))
+        if not json_out:
+            _render(site)
+    if json_out:
+        print_json(summaries if len(sites) > 1 else (summaries[0] if summaries else None))
+    if failed:
+        raise fail(failed)
+
+
+def _summary(site) -> dict:
+    record = site.record
+    return {
+        "file": str(site.path),
+        "sha256": site.sha256,
+        "site": {"id": record.site.id, "name": record.site.name},
+        "standard": site.table.key,
+        "surfaces": [{"name": s.name, "access": s.access} for s in record.surfaces],
+        "emitters": [
+            {
+                "id": e.id,
+                "operator": e.operator,
+                "kind": e.kind,
+                "frequency_mhz": e.frequency_mhz,
+                "net_power_w": e.net_power_w,
+                "gain_dbi": e.peak_gain_dbi,
+                "eirp_w": e.eirp_full_w,
+                "erp_w": e.erp_full_w,
+                "duty_factor": e.duty_factor,
+                "time_averaged_eirp_w": e.eirp_avg_w,
+            }
+            for e in record.emitters
+        ],
+        "warnings": list(site.warnings),
+    }
+
+
+def _render(site) -> None:
+    from rich.table import Table
+
+    record = site.record
+    out = console()
+    out.print(
+        f"[bold]{site.path}[/bold]: valid. Site {record.site.id!r} ({record.site.name}), "
+        f"standard {site.table.key}; {len(record.surfaces)} surfaces, "
+        f"{len(record.emitters)} emitters, {len(record.work_positions)} work positions.",
+        markup=True,
+    )
+    table = Table(show_edge=False, header_style="bold")
+    for col in ("id", "kind", "operator", "MHz", "net W", "gain dBi", "EIRP W", "ERP W", "duty"):
+        table.add_column(col, justify="left" if col in ("id", "kind", "operator") else "right")
+    for e in record.emitters:
+        table.add_row(
+            e.id, e.kind, e.operator, fmt(e.frequency_mhz, 5), fmt(e.net_power_w), f"{e.peak_gain_dbi:.1f}",
+            fmt(e.eirp_full_w), fmt(e.erp_full_w), f"{e.duty_factor:g}",
+        )
+    out.print(table)
+    for warning in site.warnings:
+        out.print(f"warning: {warning}", markup=False)
+
 
 def register(app: typer.Typer) -> None:
-    """Add this module's commands to *app* (none yet)."""
+    app.command("validate")(validate)

@@ -1,0 +1,67 @@
+"""Pieces every command shares: options, output, and the cautions shown to people."""
+
+from __future__ import annotations
+
+import json
+import sys
+from pathlib import Path
+from typing import Annotated, Any
+
+import typer
+
+StandardOption = Annotated[
+    str | None,
+    typer.Option("--standard", help="Limit set: fcc | icnirp-2020 | icnirp-1998 | canada-sc6 (default: the site's)."),
+]
+LimitsFileOption = Annotated[
+    Path | None,
+    typer.Option("--limits-file", help="A local code's limit table (TOML, the format of limits/*.toml)."),
+]
+JsonOption = Annotated[bool, typer.Option("--json", help="Print machine-readable JSON instead of tables.")]
+
+CAUTIONS = (
+    "RF burns: do not touch or stand directly in front of an antenna; contact currents and "
+    "burns are possible close to transmitting elements.",
+    "Medical implants: people with pacemakers or other active implants may be affected below "
+    "these limits and should follow their physician's and the manufacturer's advice.",
+    "Workers entering a compliance boundary need RF safety training, and the transmitters "
+    "concerned must be powered down and locked out (or reduced) before entry.",
+    "These are predictions. Local codes and regulations govern; a licensed or qualified "
+    "professional must review them and take the measurements where one is flagged.",
+)
+
+
+def console(stderr: bool = False):
+    """A rich console for tables (imported lazily to keep start-up quick)."""
+    from rich.console import Console
+
+    return Console(stderr=stderr, highlight=False, soft_wrap=False)
+
+
+def print_json(payload: Any) -> None:
+    """Write *payload* as indented JSON to stdout."""
+    typer.echo(json.dumps(payload, indent=2, ensure_ascii=False, allow_nan=False))
+
+
+def print_cautions() -> None:
+    """The usual cautions, on stderr so that piped output stays clean."""
+    out = console(stderr=True)
+    out.print("[bold]Cautions[/bold]")
+    for line in CAUTIONS:
+        out.print(f"  - {line}")
+
+
+def is_terminal(stream=None) -> bool:
+    stream = stream or sys.stderr
+    return bool(getattr(stream, "isatty", lambda: False)())
+
+
+def fmt(value: float | None, digits: int = 3) -> str:
+    """A number for a table: 3 significant digits, thousands separated, '-' for None."""
+    if value is None:
+        return "-"
+    if value == 0:
+        return "0"
+    if abs(value) >= 1000:
+        return f"{value:,.0f}"
+    return f"{value:.{digits}g}"

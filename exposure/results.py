@@ -1,0 +1,251 @@
+"""What an assessment produces: plain dataclasses, and their JSON form (INTERFACE.md keys).
+
+``Assessment.to_json()`` is the content of ``exposure assess --json`` and of the JSON file
+written beside every report. The grids (``SurfaceResult.grid``) are for maps and are not
+part of the JSON.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from typing import Literal
+
+import numpy as np
+
+Severity = Literal["info", "measure", "mitigate"]
+Verdict = Literal["compliant", "verify-by-measurement", "mitigation-required"]
+SEVERITIES: tuple[str, ...] = ("info", "measure", "mitigate")
+VERDICT_OF_SEVERITY = {"info": "compliant", "measure": "verify-by-measurement", "mitigate": "mitigation-required"}
+VERDICTS: tuple[str, ...] = ("compliant", "verify-by-measurement", "mitigation-required")
+DIRECTIONS: tuple[str, ...] = ("front", "back", "side", "above", "below")
+
+
+@dataclass(frozen=True)
+class Flag:
+    """A finding: a stable ``code``, its ``severity``, a plain message, and what it concerns."""
+
+    code: str
+    severity: Severity
+    message: str
+    emitters: tuple[str, ...] = ()
+    surface: str | None = None
+    work_position: str | None = None
+
+    def to_json(self) -> dict:
+        out = {"code": self.code, "severity": self.severity, "message": self.message}
+        if self.emitters:
+            out["emitters"] = list(self.emitters)
+        if self.surface is not None:
+            out["surface"] = self.surface
+        if self.work_position is not None:
+            out["work_position"] = self.work_position
+        return out
+
+
+@dataclass(frozen=True)
+class LimitUsed:
+    """The limit one emitter is compared with, per tier, and where it comes from."""
+
+    general_public_w_m2: float
+    occupational_w_m2: float
+    derived: bool  # True where the table gives only E and S is E²/Z0
+    citation: str
+
+    def to_json(self) -> dict:
+        return {
+            "general_public_w_m2": self.general_public_w_m2,
+            "occupational_w_m2": self.occupational_w_m2,
+            "derived_from_e_field": self.derived,
+            "citation": self.citation,
+        }
+
+
+@dataclass(frozen=True)
+class EmitterResult:
+    """One emitter: its inputs as used, and its own compliance boundary per tier."""
+
+    id: str
+    operator: str
+    kind: str
+    frequency_mhz: float
+    net_power_w: float  # at full output
+    gain_dbi: float
+    eirp_w: float  # at full output
+    erp_w: float
+    time_averaging_factor: float  # duty x power-reduction
+    model: str
+    limit: LimitUsed
+    boundary_m: dict[str, dict[str, float]]  # tier -> direction -> distance from centre [m]
+    main_beam_boundary_m: dict[str, float]  # tier -> distance along the (tilted) main beam [m]
+    azimuth_deg: float | None
+    mech_tilt_deg: float | None
+    elec_tilt_deg: float | None
+    position_m: tuple[float, float, float]
+    transmitter_power_w: float | None = None  # per port at full output (None: given as EIRP)
+    public_headroom_scale: float | None = None  # factor on this emitter's power that keeps every
+    # public surface compliant with the others as they are (None: no public surface it reaches)
+
+    def to_json(self) -> dict:
+        return {
+            "id": self.id,
+            "operator": self.operator,
+            "kind": self.kind,
+            "frequency_mhz": self.frequency_mhz,
+            "net_power_w": self.net_power_w,
+            "gain_dbi": self.gain_dbi,
+            "eirp_w": self.eirp_w,
+            "erp_w": self.erp_w,
+            "time_averaging_factor": self.time_averaging_factor,
+            "model": self.model,
+            "limit": self.limit.to_json(),
+            "boundary_m": self.boundary_m,
+            "main_beam_boundary_m": self.main_beam_boundary_m,
+            "position_m": list(self.position_m),
+            "azimuth_deg": self.azimuth_deg,
+            "mech_tilt_deg": self.mech_tilt_deg,
+            "elec_tilt_deg": self.elec_tilt_deg,
+            "transmitter_power_w": self.transmitter_power_w,
+            "headroom": self.headroom_json(),
+        }
+
+
+    def headroom_json(self) -> dict:
+        scale = self.public_headroom_scale
+        return {
+            "power_scale_public_compliant": scale,
+            "max_transmitter_power_w": None if scale is None or self.transmitter_power_w is None
+            else scale * self.transmitter_power_w,
+            "max_eirp_w": None if scale is None else scale * self.eirp_w,
+        }
+
+
+@dataclass(frozen=True)
+class SurfaceGrid:
+    """The evaluated map of one surface (cell centres), for plotting.
+
+    ``ratio[tier]`` has shape (len(y), len(x)): the total exposure ratio (peak over the body
+    height, or its spatial average, as the site says); NaN outside the outline.
+    """
+
+    x_m: np.ndarray
+    y_m: np.ndarray
+    ratio: dict[str, np.ndarray]
+    cell_m: float
+
+
+@dataclass(frozen=True)
+class SurfaceResult:
+    """One walking surface: peak totals per tier, where, areas above limits, verdict."""
+
+    name: str
+    access: str
+    elevation_m: float
+    outline: tuple[tuple[float, float], ...]
+    governing_tier: str | None  # None for access 'none' (reported, not judged)
+    max_ratio: dict[str, float]
+    max_at_m: dict[str, tuple[float, float, float]]  # tier -> point of the maximum
+    area_above_m2: dict[str, float]
+    area_m2: float
+    compliant: bool | None
+    exceedance_regions: dict[str, list[list[tuple[float, float]]]]  # tier -> polygons [[x, y], ...]
+    responsible: dict[str, list[str]]  # tier -> emitter ids with >= 5 % of their limit where exceeded
+    headroom_factor: float | None  # power scale of every emitter before the governing ratio reaches 1
+    grid: SurfaceGrid | None = field(default=None, compare=False, repr=False)
+
+    def to_json(self) -> dict:
+        return {
+            "name": self.name,
+            "access": self.access,
+            "elevation_m": self.elevation_m,
+            "governing_tier": self.governing_tier,
+            "max_ratio": self.max_ratio,
+            "max_at_m": list(self.max_at_m[self.governing_tier or "general_public"]),
+            "max_at_by_tier_m": {k: list(v) for k, v in self.max_at_m.items()},
+            "area_m2": self.area_m2,
+            "area_above_limit_m2": self.area_above_m2,
+            "compliant": self.compliant,
+            "exceedance_regions": {k: [[list(p) for p in poly] for poly in v] for k, v in self.exceedance_regions.items()},
+            "responsible_emitters": self.responsible,
+            "headroom_factor": self.headroom_factor,
+        }
+
+
+@dataclass(frozen=True)
+class WorkPositionResult:
+    """A place a worker must reach: exposure there and what must be switched off first."""
+
+    name: str
+    point_m: tuple[float, float, float]
+    ratio: dict[str, float]  # tier -> total ratio over the body height (peak or average)
+    contributions: dict[str, float]  # emitter id -> its occupational ratio there
+    power_down: tuple[str, ...]  # smallest set, largest first, bringing occupational ratio <= 1
+    power_down_operators: tuple[str, ...]
+
+    def to_json(self) -> dict:
+        return {
+            "name": self.name,
+            "point_m": list(self.point_m),
+            "ratio": self.ratio,
+            "contributions_occupational": self.contributions,
+            "power_down": list(self.power_down),
+            "power_down_operators": list(self.power_down_operators),
+        }
+
+
+@dataclass(frozen=True)
+class Assumption:
+    """A modelling choice written into the report (what, and whether it is conservative)."""
+
+    topic: str
+    text: str
+
+    def to_json(self) -> dict:
+        return {"topic": self.topic, "text": self.text}
+
+
+@dataclass(frozen=True)
+class Assessment:
+    """The whole-site result a compliance engineer reviews."""
+
+    site_id: str
+    site_name: str
+    source_file: str
+    source_sha256: str
+    tool_version: str
+    standard: str
+    standard_title: str
+    standard_citation: str
+    standard_status: str
+    settings: dict  # ground_reflection, reflection_factor, body_height_m, evaluation, grid_m, measure_above
+    emitters: tuple[EmitterResult, ...]
+    surfaces: tuple[SurfaceResult, ...]
+    work_positions: tuple[WorkPositionResult, ...]
+    flags: tuple[Flag, ...]
+    verdict: Verdict
+    assumptions: tuple[Assumption, ...]
+    operators: dict[str, list[str]]  # operator -> emitter ids
+
+    def to_json(self) -> dict:
+        return {
+            "site": {"id": self.site_id, "name": self.site_name},
+            "standard": self.standard,
+            "standard_title": self.standard_title,
+            "standard_citation": self.standard_citation,
+            "standard_status": self.standard_status,
+            "input": {"file": self.source_file, "sha256": self.source_sha256},
+            "tool_version": self.tool_version,
+            "settings": self.settings,
+            "emitters": [e.to_json() for e in self.emitters],
+            "surfaces": [s.to_json() for s in self.surfaces],
+            "work_positions": [w.to_json() for w in self.work_positions],
+            "flags": [f.to_json() for f in self.flags],
+            "verdict": self.verdict,
+            "assumptions": [a.to_json() for a in self.assumptions],
+            "operators": self.operators,
+        }
+
+    def surface(self, name: str) -> SurfaceResult:
+        return next(s for s in self.surfaces if s.name == name)
+
+    def emitter(self, emitter_id: str) -> EmitterResult:
+        return next(e for e in self.emitters if e.id == emitter_id)

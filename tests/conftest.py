@@ -1,0 +1,48 @@
+"""Shared fixtures: small invented site records written to a temporary folder."""
+
+from __future__ import annotations
+
+import copy
+import json
+from pathlib import Path
+
+import pytest
+
+REPO = Path(__file__).resolve().parent.parent
+SAMPLE_SITES = sorted((REPO / "sample_sites").glob("*.toml"))
+
+BASE_RECORD = {
+    "schema_version": 1,
+    "site": {"id": "test-site", "name": "Test roof (invented)", "standard": "fcc"},
+    "surfaces": [
+        {"name": "Roof", "access": "occupational", "elevation_m": 0.0,
+         "outline": [[0, 0], [20, 0], [20, 10], [0, 10]]},
+    ],
+    "emitters": [
+        {"id": "A1", "operator": "Operator A (invented)", "kind": "panel", "frequency_mhz": 1960,
+         "power_w": 40, "ports": 2, "line_loss_db": 0.5, "gain_dbi": 17.5,
+         "x_m": 10.0, "y_m": 9.5, "z_m": 3.0, "azimuth_deg": 0, "elec_tilt_deg": 2,
+         "h_beamwidth_deg": 65, "v_beamwidth_deg": 7, "front_to_back_db": 25, "length_m": 1.8},
+        {"id": "D1", "operator": "Operator B (invented)", "kind": "dish", "frequency_mhz": 11000,
+         "power_w": 1.0, "x_m": 2.0, "y_m": 9.0, "z_m": 3.0, "azimuth_deg": 300, "diameter_m": 0.6},
+    ],
+    "work_positions": [{"name": "Unit", "x_m": 10, "y_m": 5, "z_m": 0}],
+}
+
+
+@pytest.fixture
+def record() -> dict:
+    """A fresh deep copy of a small valid record to mutate."""
+    return copy.deepcopy(BASE_RECORD)
+
+
+@pytest.fixture
+def write_record(tmp_path):
+    """Write a record dict as JSON (the same structure as TOML) and return its path."""
+
+    def write(data: dict, name: str = "site.json") -> Path:
+        path = tmp_path / name
+        path.write_text(json.dumps(data), encoding="utf-8")
+        return path
+
+    return write

@@ -11,7 +11,6 @@ import sys
 from importlib import import_module
 from typing import Annotated
 
-import click
 import typer
 from typer.core import TyperGroup
 
@@ -46,18 +45,18 @@ def fail(lines: list[str] | str, code: int = EXIT_INPUT) -> typer.Exit:
 class _GuardedGroup(TyperGroup):
     """Runs a command and turns the package's errors into exit codes, never tracebacks."""
 
-    def list_commands(self, ctx: click.Context) -> list[str]:
+    def list_commands(self, ctx) -> list[str]:
         return list(self.commands)  # registration order, not alphabetical
 
-    def invoke(self, ctx: click.Context):
+    def invoke(self, ctx):
         try:
             return super().invoke(ctx)
         except InputError as exc:
             if _debug(ctx):
                 raise
             raise fail(exc.lines()) from None
-        except (typer.Exit, typer.Abort, click.exceptions.Exit, click.exceptions.Abort, click.ClickException):
-            raise
+        except (typer.Exit, typer.Abort, typer.TyperException):
+            raise  # typer's own usage errors and exits keep their codes
         except KeyboardInterrupt:
             typer.echo("interrupted", err=True)
             raise typer.Exit(130) from None
@@ -71,7 +70,7 @@ class _GuardedGroup(TyperGroup):
             ) from None
 
 
-def _debug(ctx: click.Context) -> bool:
+def _debug(ctx) -> bool:
     root = ctx.find_root()
     return bool(root.obj and root.obj.get("debug"))
 

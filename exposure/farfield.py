@@ -1,0 +1,82 @@
+r"""Spherical (far-field) model: power density of a point source with a pattern.
+
+The formula (:func:`spherical_power_density`) and the kernel the field evaluation calls on
+antenna-frame coordinates (:func:`spherical_kernel`). Reflection factors are applied by
+the caller (:func:`exposure.field.power_density`).
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from exposure.patterns import Pattern
+
+__all__ = ["spherical_power_density", "spherical_kernel", "minimum_distance_m", "MAX_MINIMUM_DISTANCE_M"]
+
+MAX_MINIMUM_DISTANCE_M = 0.1
+"""Upper bound of :func:`minimum_distance_m` [m]."""
+
+
+def minimum_distance_m(wavelength_m: float) -> float:
+    r"""Distance below which the models hold their value at this distance [m].
+
+    .. math:: r_{min} = \min(\lambda / 2\pi,\ 0.1\ \mathrm{m})
+
+    Inside :math:`\lambda/2\pi` (the reactive near field; REFERENCES.md § 3) none of the
+    models applies. Every model's distance is clamped to :math:`r_{min}` so that a point
+    at the source gives a finite value: the value the model gives at :math:`r_{min}`,
+    which is at least as high as any value it gives farther out (conservative with
+    respect to the model). The cap of 0.1 m keeps the clamp small against the body at low
+    frequencies (this project's choice).
+    """
+    return float(min(wavelength_m / (2.0 * math.pi), MAX_MINIMUM_DISTANCE_M))
+
+
+def spherical_power_density(eirp_w, distance_m, relative_gain=1.0):
+    r"""Far-field power density of a point source.
+
+    Parameters
+    ----------
+    eirp_w : numeric
+        Peak EIRP, net power times peak gain [W].
+    distance_m : numeric
+        Distance from the centre of radiation [m], > 0.
+    relative_gain : numeric
+        Pattern relative to the peak, :math:`g(\theta,\varphi) \le 1` [linear].
+
+    Returns
+    -------
+    numeric
+        Power density [W/m²], without ground reflection.
+
+    Notes
+    -----
+    .. math:: S = \frac{P\,G\,g(\theta,\varphi)}{4\pi r^2}
+
+    FCC OET Bulletin 65, Edition 97-01 (1997), far-field equation (from memory; REFERENCES.md § 3).
+    Valid in the far field, :math:`r \gtrsim 2D^2/\lambda`; nearer it overestimates the
+    main beam of a large aperture.
+    """
+    r = np.asarray(distance_m, dtype=float)
+    return np.asarray(eirp_w, dtype=float) * np.asarray(relative_gain, dtype=float) / (4.0 * math.pi * r * r)
+
+
+def spherical_kernel(pattern: Pattern, eirp_w: float, forward, right, up, r_min: float) -> np.ndarray:
+    """Spherical model on antenna-frame coordinates (1-d float arrays) [W/m²].
+
+    Distances are clamped to ``r_min`` (:func:`minimum_distance_m`). Works in as few
+    temporaries as it can: it is the common path of a site evaluation.
+    """
+    horizontal2 = forward * forward
+    horizontal2 += right * right
+    horizontal = np.sqrt(horizontal2)
+    g = pattern.gain_at(pattern.azimuth_part(forward, right), up, horizontal)
+    r2 = horizontal2  # reuse: r^2 = horizontal^2 + up^2
+    np.multiply(up, up, out=horizontal)
+    r2 += horizontal
+    np.maximum(r2, r_min * r_min, out=r2)
+    g *= eirp_w / (4.0 * math.pi)
+    g /= r2
+    return g

@@ -65,3 +65,41 @@ def fmt(value: float | None, digits: int = 3) -> str:
     if abs(value) >= 1000:
         return f"{value:,.0f}"
     return f"{value:.{digits}g}"
+
+
+class Progress:
+    """A progress bar on stderr for long evaluations; silent when stderr is not a terminal
+    or when asked to be quiet. Use as a context manager; call it as ``progress(done, total)``."""
+
+    def __init__(self, label: str, quiet: bool = False) -> None:
+        self.enabled = not quiet and is_terminal()
+        self.label = label
+        self._bar = None
+        self._task = None
+
+    def __enter__(self) -> Progress:
+        if self.enabled:
+            from rich.progress import BarColumn, Progress as Bar, TextColumn, TimeRemainingColumn
+
+            self._bar = Bar(TextColumn("{task.description}"), BarColumn(), TextColumn("{task.percentage:>3.0f}%"),
+                            TimeRemainingColumn(), console=console(stderr=True), transient=True)
+            self._bar.__enter__()
+            self._task = self._bar.add_task(self.label, total=None)
+        return self
+
+    def __call__(self, done: float, total: float) -> None:
+        if self._bar is not None:
+            self._bar.update(self._task, completed=done, total=total)
+
+    def __exit__(self, *exc) -> None:
+        if self._bar is not None:
+            self._bar.__exit__(*exc)
+
+
+VERDICT_WORDS = {
+    "compliant": "COMPLIANT: predicted exposure is within the limits on every accessible surface.",
+    "verify-by-measurement": "VERIFY BY MEASUREMENT: within the limits as predicted, but close to them or "
+    "where the model may not hold; a qualified person must measure.",
+    "mitigation-required": "MITIGATION REQUIRED: a limit is exceeded where people have access; restrict "
+    "access or reduce power before operation.",
+}

@@ -1,7 +1,62 @@
-"""`exposure probe` (not built yet)."""
+"""``exposure probe SITE --at X,Y,Z``: power density and ratios at one point."""
+
+from __future__ import annotations
+
+import math
+from pathlib import Path
+from typing import Annotated
 
 import typer
 
+from exposure.cli.common import JsonOption, LimitsFileOption, StandardOption, console, fmt, print_json
+
+
+def parse_point(text: str) -> tuple[float, float, float]:
+    """``"X,Y,Z"`` in metres, site frame; refuse anything else with the option named."""
+    from exposure.errors import InputError
+
+    parts = [p.strip() for p in text.split(",")]
+    try:
+        values = tuple(float(p) for p in parts)
+    except ValueError:
+        values = ()
+    if len(values) != 3 or not all(math.isfinite(v) for v in values):
+        raise InputError(f"--at: {text!r} must be three finite numbers X,Y,Z in metres, e.g. --at 12,20,1.5")
+    return values  # type: ignore[return-value]
+
+
+def probe(
+    site_file: Annotated[Path, typer.Argument(metavar="SITE", help="Site record (.toml or .json).")],
+    at: Annotated[str, typer.Option("--at", help="Point X,Y,Z in metres (site frame).")],
+    standard: StandardOption = None,
+    limits_file: LimitsFileOption = None,
+    json_out: JsonOption = False,
+) -> None:
+    """Power density of every emitter, and the total exposure ratio, at one point."""
+    from exposure.assessment import probe as probe_point
+    from exposure.loader import load_site
+
+    point = parse_point(at)
+    site = load_site(site_file, standard=standard, limits_file=limits_file)
+    result = probe_point(site, point)
+    if json_out:
+        print_json(result)
+        return
+    from rich.markup import escape as esc
+    from rich.table import Table
+
+    out = console()
+    out.print(f"Point ({point[0]:g}, {point[1]:g}, {point[2]:g}) m on {esc(site.record.site.name)}, standard {site.table.key}")
+    table = Table(show_edge=False, header_style="bold")
+    for col in ("emitter", "MHz", "model", "S W/m²", "% GP limit", "% occ. limit"):
+        table.add_column(col, justify="left" if col in ("emitter", "model") else "right")
+    for e in result["emitters"]:
+        table.add_row(esc(e["id"]), fmt(e["frequency_mhz"], 5), e["model"], fmt(e["power_density_w_m2"]),
+                      fmt(100 * e["ratio"]["general_public"]), fmt(100 * e["ratio"]["occupational"]))
+    total = result["total_ratio"]
+    table.add_row("total", "", "", "", fmt(100 * total["general_public"]), fmt(100 * total["occupational"]), style="bold")
+    out.print(table)
+
 
 def register(app: typer.Typer) -> None:
-    """Add this module's commands to *app* (none yet)."""
+    app.command("probe")(probe)

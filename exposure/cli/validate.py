@@ -67,12 +67,13 @@ def _summary(site) -> dict:
 
 
 def _render(site) -> None:
+    from rich.markup import escape as esc
     from rich.table import Table
 
     record = site.record
     out = console()
     out.print(
-        f"[bold]{site.path}[/bold]: valid. Site {record.site.id!r} ({record.site.name}), "
+        f"[bold]{esc(str(site.path))}[/bold]: valid. Site {record.site.id!r} ({esc(record.site.name)}), "
         f"standard {site.table.key}; {len(record.surfaces)} surfaces, "
         f"{len(record.emitters)} emitters, {len(record.work_positions)} work positions.",
         markup=True,
@@ -82,7 +83,7 @@ def _render(site) -> None:
         table.add_column(col, justify="left" if col in ("id", "kind", "operator") else "right")
     for e in record.emitters:
         table.add_row(
-            e.id, e.kind, e.operator, fmt(e.frequency_mhz, 5), fmt(e.net_power_w), f"{e.peak_gain_dbi:.1f}",
+            esc(e.id), e.kind, esc(e.operator), fmt(e.frequency_mhz, 5), fmt(e.net_power_w), f"{e.peak_gain_dbi:.1f}",
             fmt(e.eirp_full_w), fmt(e.erp_full_w), f"{e.duty_factor:g}",
         )
     out.print(table)

@@ -1,0 +1,718 @@
+"""Whole-site assessment: every emitter over every surface, totals, boundaries and verdict.
+
+The data's way through::
+
+    LoadedSite → limits per emitter and tier → power density of each emitter on the
+    points of each surface (cells × heights) → total exposure ratio per tier → peak or
+    spatial average over the body height → maps, maxima, areas, exceedance polygons →
+    boundaries per emitter → work positions → flags → verdict.
+
+Total exposure ratio (IEC 62232 / ITU-T K.52 practice; ICNIRP 2020 multiple-frequency
+rule, thermal region): ``T = Σ_i S_i / S_L,i`` per tier, compliant where ``T ≤ 1``.
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Callable, Sequence
+from dataclasses import dataclass
+
+import numpy as np
+
+from exposure import __version__
+from exposure.antenna import Antenna
+from exposure.field import REFLECTION_FACTORS, boresight_distance_to_limit, model_for, power_density
+from exposure.limits import TIERS
+from exposure.loader import LoadedSite
+from exposure.records import ACCESS_TIER, polygon_area
+from exposure.results import (
+    DIRECTIONS,
+    SEVERITIES,
+    VERDICT_OF_SEVERITY,
+    Assessment,
+    Assumption,
+    EmitterResult,
+    Flag,
+    LimitUsed,
+    SurfaceGrid,
+    SurfaceResult,
+    WorkPositionResult,
+)
+from exposure.units import wavelength_m
+
+RESPONSIBILITY_SHARE = 0.05
+"""A licensee shares responsibility where its emitter gives ≥ 5 % of its own limit in an
+area where the limit is exceeded (47 CFR § 1.1307(b)(3), multiple-transmitter sites)."""
+MEASURE_ABOVE = 0.5
+"""Default: a governing ratio at or above 0.5 (−3 dB of the limit, the model's
+uncertainty band) calls for a measurement."""
+HEIGHT_STEP_M = 0.2
+"""Vertical sampling of the body height above each surface point."""
+POINT_BUDGET = 4_000_000
+"""Emitter-point values held at once (≈ 32 MB of float64): bounds memory per chunk."""
+LOW_FREQUENCY_MHZ = 30.0
+
+ProgressCallback = Callable[[int, int], None]
+
+
+@dataclass(frozen=True)
+class SiteLimits:
+    """Per-emitter limits [W/m²] for each tier, and their reciprocals for the ratio sums."""
+
+    limit: dict[str, np.ndarray]
+    derived: np.ndarray  # True where S was derived from E (the table gives only fields)
+
+    @property
+    def inverse(self) -> dict[str, np.ndarray]:
+        return {tier: 1.0 / values for tier, values in self.limit.items()}
+
+
+def site_limits(site: LoadedSite) -> SiteLimits:
+    """The comparison power-density limit of every emitter at its frequency, per tier."""
+    limit = {tier: np.empty(len(site.antennas)) for tier in TIERS}
+    derived = np.zeros(len(site.antennas), dtype=bool)
+    for i, antenna in enumerate(site.antennas):
+        at = site.table.at(antenna.frequency_mhz)
+        for tier in TIERS:
+            value, was_derived = at[tier].comparison_power_density_w_m2()
+            limit[tier][i] = value
+            derived[i] |= was_derived
+    return SiteLimits(limit=limit, derived=derived)
+
+
+def reflection_factor(site: LoadedSite) -> float:
+    """Power reflection factor of the site's ``ground_reflection`` (OET 65: ×1, ×2.56, ×4)."""
+    return REFLECTION_FACTORS[site.record.site.ground_reflection]
+
+
+def body_offsets(body_height_m: float) -> np.ndarray:
+    """Heights above a surface at which a standing person is sampled [m]: 0 to the body
+    height in steps of at most ``HEIGHT_STEP_M``, both ends included."""
+    n = max(2, math.ceil(body_height_m / HEIGHT_STEP_M) + 1)
+    return np.linspace(0.0, body_height_m, n)
+
+
+def reduce_over_height(values: np.ndarray, evaluation: str, axis: int = -1) -> np.ndarray:
+    """Peak over the body height, or its spatial average (trapezoidal rule over equally
+    spaced samples; OET 65 Bulletin practice of averaging over the height of a body)."""
+    if evaluation == "peak":
+        return values.max(axis=axis)
+    weights = np.ones(values.shape[axis])
+    weights[[0, -1]] = 0.5
+    weights /= weights.sum()
+    return np.tensordot(values, weights, axes=([axis], [0]))
+
+
+def emitter_power_density(site: LoadedSite, points: np.ndarray) -> np.ndarray:
+    """Power density of every emitter at *points* [W/m²], shape (n_emitters, *points.shape[:-1]).
+
+    Uses the auto model of each emitter and the site's reflection factor.
+    """
+    factor = reflection_factor(site)
+    return np.stack([power_density(a, points, reflection=factor) for a in site.antennas])
+
+
+def probe(site: LoadedSite, point_m: Sequence[float]) -> dict:
+    """Power density and ratios at one point (the ``exposure probe`` JSON)."""
+    point = np.asarray(point_m, dtype=float).reshape(1, 3)
+    density = emitter_power_density(site, point)[:, 0]
+    limits = site_limits(site)
+    emitters = []
+    for i, antenna in enumerate(site.antennas):
+        emitters.append({
+            "id": antenna.id,
+            "frequency_mhz": antenna.frequency_mhz,
+            "model": model_for(antenna),
+            "power_density_w_m2": float(density[i]),
+            "ratio": {tier: float(density[i] / limits.limit[tier][i]) for tier in TIERS},
+        })
+    total = {tier: float(np.sum(density / limits.limit[tier])) for tier in TIERS}
+    return {"point_m": [float(v) for v in point[0]], "standard": site.table.key, "emitters": emitters, "total_ratio": total}
+
+
+# --- surfaces --------------------------------------------------------------------------------
+
+
+def points_in_polygon(x: np.ndarray, y: np.ndarray, outline: Sequence[Sequence[float]]) -> np.ndarray:
+    """Even-odd rule point-in-polygon test, vectorised over points."""
+    inside = np.zeros(np.shape(x), dtype=bool)
+    n = len(outline)
+    for k in range(n):
+        x1, y1 = outline[k]
+        x2, y2 = outline[(k + 1) % n]
+        if y1 == y2:
+            continue
+        crosses = (y1 > y) != (y2 > y)
+        x_at = x1 + (y - y1) * (x2 - x1) / (y2 - y1)
+        inside ^= crosses & (x < x_at)
+    return inside
+
+
+def surface_cells(outline: Sequence[Sequence[float]], grid_m: float) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Cell-centre axes over the outline's bounding box and the mask of centres inside it.
+
+    A surface smaller than one cell still gets its centroid-nearest cell.
+    """
+    xs, ys = np.array([p[0] for p in outline]), np.array([p[1] for p in outline])
+    nx = max(1, math.ceil((xs.max() - xs.min()) / grid_m))
+    ny = max(1, math.ceil((ys.max() - ys.min()) / grid_m))
+    x = xs.min() + (np.arange(nx) + 0.5) * (xs.max() - xs.min()) / nx
+    y = ys.min() + (np.arange(ny) + 0.5) * (ys.max() - ys.min()) / ny
+    gx, gy = np.meshgrid(x, y)
+    inside = points_in_polygon(gx, gy, outline)
+    if not inside.any():
+        inside[ny // 2, nx // 2] = True
+    return x, y, inside
+
+
+@dataclass
+class _SurfaceAccumulator:
+    """Running results over the chunks of one surface."""
+
+    n_emitters: int
+    exceed_share: dict[str, np.ndarray]  # tier -> max share of each emitter where T > 1
+    headroom: np.ndarray  # per emitter: power scale keeping this surface's governing T <= 1
+
+    @classmethod
+    def new(cls, n: int) -> _SurfaceAccumulator:
+        return cls(n, {t: np.zeros(n) for t in TIERS}, np.full(n, np.inf))
+
+
+def _evaluate_surface(site, surface, limits: SiteLimits, offsets, grid_m, progress, done_total):
+    evaluation = site.record.site.evaluation
+    x, y, inside = surface_cells(surface.outline, grid_m)
+    cell_index = np.flatnonzero(inside.ravel())
+    gx, gy = np.meshgrid(x, y)
+    cx, cy = gx.ravel()[cell_index], gy.ravel()[cell_index]
+    n_e, n_h = len(site.antennas), len(offsets)
+    z = surface.elevation_m + offsets
+    maps = {tier: np.full(inside.size, np.nan) for tier in TIERS}
+    argmax_z = {tier: np.zeros(inside.size) for tier in TIERS}
+    acc = _SurfaceAccumulator.new(n_e)
+    inverse = limits.inverse
+    governing = ACCESS_TIER.get(surface.access)
+    factor = reflection_factor(site)
+    chunk = max(1, POINT_BUDGET // (n_e * n_h))
+    for start in range(0, len(cell_index), chunk):
+        sl = slice(start, start + chunk)
+        n_c = len(cx[sl])
+        points = np.empty((n_c, n_h, 3))
+        points[..., 0] = cx[sl, None]
+        points[..., 1] = cy[sl, None]
+        points[..., 2] = z[None, :]
+        density = np.empty((n_e, n_c, n_h))
+        for i, antenna in enumerate(site.antennas):
+            density[i] = power_density(antenna, points, reflection=factor)
+            if progress:
+                done_total[0] += n_c
+                progress(done_total[0], done_total[1])
+        for tier in TIERS:
+            total = np.tensordot(inverse[tier], density, axes=1)  # Σ_i S_i / S_L,i: (n_c, n_h)
+            reduced = reduce_over_height(total, evaluation)
+            maps[tier][cell_index[sl]] = reduced
+            argmax_z[tier][cell_index[sl]] = z[np.argmax(total, axis=1)] if evaluation == "peak" else z[0]
+            exceeding = reduced > 1.0
+            if exceeding.any():
+                share = density[:, exceeding, :].max(axis=2).max(axis=1) * inverse[tier]
+                np.maximum(acc.exceed_share[tier], share, out=acc.exceed_share[tier])
+            if tier == governing and surface.access == "public":
+                _update_headroom(acc.headroom, density * inverse[tier][:, None, None], total, reduced, evaluation)
+    grid = SurfaceGrid(x_m=x, y_m=y, ratio={t: m.reshape(inside.shape) for t, m in maps.items()}, cell_m=grid_m)
+    return grid, argmax_z, acc
+
+
+def _update_headroom(headroom, ratio, total, reduced, evaluation) -> None:
+    """Lower each emitter's power scale k so that T_others + k·r_i ≤ 1 wherever it
+    reaches (per point for the peak rule, per cell for the spatial average, both linear)."""
+    units_total = total if evaluation == "peak" else reduced
+    units_ratio = ratio if evaluation == "peak" else reduce_over_height(ratio, evaluation)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        scale = (1.0 - (units_total[None] - units_ratio)) / units_ratio
+    scale = np.where(units_ratio > 0, scale, np.inf)
+    np.minimum(headroom, np.maximum(scale.reshape(len(headroom), -1).min(axis=1), 0.0), out=headroom)
+
+
+def _exceedance_polygons(grid: SurfaceGrid, tier: str) -> list[list[tuple[float, float]]]:
+    """Outer rings of the regions where the total ratio exceeds 1 (holes are filled in,
+    which errs towards a larger barrier)."""
+    values = grid.ratio[tier]
+    if not np.nanmax(values) > 1.0 or len(grid.x_m) < 2 or len(grid.y_m) < 2:
+        return []
+    import contourpy
+
+    generator = contourpy.contour_generator(
+        grid.x_m, grid.y_m, np.ma.masked_invalid(values), fill_type="OuterOffset"
+    )
+    points, offsets = generator.filled(1.0, float(np.nanmax(values)) * 2 + 1.0)
+    rings = []
+    for pts, offs in zip(points, offsets):
+        outer = pts[offs[0]:offs[1]]
+        rings.append([(round(float(px), 3), round(float(py), 3)) for px, py in outer])
+    return rings
+
+
+def _surface_result(site, surface, grid, argmax_z, acc) -> SurfaceResult:
+    governing = ACCESS_TIER.get(surface.access)
+    cell_area = (grid.x_m[1] - grid.x_m[0] if len(grid.x_m) > 1 else site.record.site.grid_m) * (
+        grid.y_m[1] - grid.y_m[0] if len(grid.y_m) > 1 else site.record.site.grid_m
+    )
+    ids = [a.id for a in site.antennas]
+    max_ratio, max_at, area_above, regions, responsible = {}, {}, {}, {}, {}
+    for tier in TIERS:
+        values = grid.ratio[tier]
+        flat = int(np.nanargmax(values))
+        iy, ix = np.unravel_index(flat, values.shape)
+        max_ratio[tier] = float(values[iy, ix])
+        max_at[tier] = (float(grid.x_m[ix]), float(grid.y_m[iy]), float(argmax_z[tier][flat]))
+        area_above[tier] = float(np.sum(values > 1.0) * cell_area)
+        regions[tier] = _exceedance_polygons(grid, tier)
+        responsible[tier] = [ids[i] for i in np.flatnonzero(acc.exceed_share[tier] >= RESPONSIBILITY_SHARE)]
+    compliant = None if governing is None else bool(max_ratio[governing] <= 1.0)
+    headroom = None
+    if governing is not None and max_ratio[governing] > 0:
+        headroom = 1.0 / max_ratio[governing]
+    return SurfaceResult(
+        name=surface.name,
+        access=surface.access,
+        elevation_m=surface.elevation_m,
+        outline=tuple((float(p[0]), float(p[1])) for p in surface.outline),
+        governing_tier=governing,
+        max_ratio=max_ratio,
+        max_at_m=max_at,
+        area_above_m2=area_above,
+        area_m2=abs(polygon_area(surface.outline)),
+        compliant=compliant,
+        exceedance_regions=regions,
+        responsible=responsible,
+        headroom_factor=headroom,
+        grid=grid,
+    )
+
+
+# --- boundaries ------------------------------------------------------------------------------
+
+
+def boundary_directions(antenna: Antenna) -> dict[str, list[np.ndarray]]:
+    """Unit vectors of the box boundary: front and back along the horizontal boresight,
+    side (both sides, the larger is reported), above and below."""
+    az = math.radians(antenna.azimuth_deg)
+    front = np.array([math.sin(az), math.cos(az), 0.0])  # clockwise from +y (north)
+    left = np.array([-front[1], front[0], 0.0])
+    up = np.array([0.0, 0.0, 1.0])
+    return {"front": [front], "back": [-front], "side": [left, -left], "above": [up], "below": [-up]}
+
+
+def ray_extent(antenna: Antenna, direction: np.ndarray, limit_w_m2: float, reflection: float) -> float:
+    """Largest distance [m] along *direction* from the centre of radiation at which the
+    emitter alone reaches *limit_w_m2*; 0 where it never does.
+
+    Scans 400 log-spaced distances out to where a spherical bound with the peak gain falls
+    below the limit, then refines the outermost crossing on finer grids to 1 mm or 0.1 %
+    (reported on the far side: conservative).
+    """
+    bound = math.sqrt(reflection * antenna.eirp_w / (4 * math.pi * limit_w_m2))
+    if antenna.kind == "dish" and antenna.diameter_m:
+        bound = max(bound, 0.6 * antenna.diameter_m**2 / antenna.wavelength_m)
+    r = np.geomspace(1e-3, max(1.5 * bound, 0.5), 400)
+    origin = np.asarray(antenna.position_m)
+    while True:
+        s = power_density(antenna, origin + r[:, None] * direction, reflection=reflection)
+        above = np.flatnonzero(s >= limit_w_m2)
+        if above.size == 0:
+            return 0.0 if r[0] <= 1e-3 else float(r[0])
+        k = above[-1]
+        if k == len(r) - 1:
+            return float(r[-1])
+        lo, hi = r[k], r[k + 1]
+        if hi - lo <= max(1e-3, 1e-3 * lo):
+            return float(hi)
+        r = np.linspace(lo, hi, 33)  # refine the outermost crossing 32-fold per pass
+
+
+def emitter_boundaries(antenna: Antenna, limits_w_m2: dict[str, float], reflection: float) -> dict[str, dict[str, float]]:
+    """Front, back, side, above and below boundary distances per tier [m]."""
+    directions = boundary_directions(antenna)
+    return {
+        tier: {
+            name: max(ray_extent(antenna, d, limits_w_m2[tier], reflection) for d in directions[name])
+            for name in DIRECTIONS
+        }
+        for tier in TIERS
+    }
+
+
+# --- work positions --------------------------------------------------------------------------
+
+
+def _work_position(site, position, limits: SiteLimits, offsets) -> WorkPositionResult:
+    evaluation = site.record.site.evaluation
+    points = np.column_stack([
+        np.full(len(offsets), position.x_m), np.full(len(offsets), position.y_m), position.z_m + offsets
+    ])
+    density = emitter_power_density(site, points)  # (n_e, n_h)
+    ratio = {t: density / limits.limit[t][:, None] for t in TIERS}
+    totals = {t: float(reduce_over_height(r.sum(axis=0), evaluation)) for t, r in ratio.items()}
+    occupational = ratio["occupational"]
+    contributions = reduce_over_height(occupational, evaluation, axis=1)
+    order = np.argsort(-contributions, kind="stable")
+    remaining = np.ones(len(site.antennas), dtype=bool)
+    power_down: list[int] = []
+    for i in order:
+        if reduce_over_height(occupational[remaining].sum(axis=0), evaluation) <= 1.0:
+            break
+        remaining[i] = False
+        power_down.append(int(i))
+    ids = [a.id for a in site.antennas]
+    operators = list(dict.fromkeys(site.record.emitters[i].operator for i in power_down))
+    return WorkPositionResult(
+        name=position.name,
+        point_m=(position.x_m, position.y_m, position.z_m),
+        ratio=totals,
+        contributions={ids[i]: float(contributions[i]) for i in order},
+        power_down=tuple(ids[i] for i in power_down),
+        power_down_operators=tuple(operators),
+    )
+
+
+# --- model-validity checks -------------------------------------------------------------------
+
+
+def distance_to_prism(point: Sequence[float], outline, z0: float, z1: float) -> float:
+    """Distance [m] from a point to the volume over a polygon between heights z0 and z1."""
+    px, py, pz = point
+    if points_in_polygon(np.array([px]), np.array([py]), outline)[0]:
+        horizontal = 0.0
+    else:
+        horizontal = min(_segment_distance(px, py, outline[k], outline[(k + 1) % len(outline)]) for k in range(len(outline)))
+    vertical = max(z0 - pz, 0.0, pz - z1)
+    return math.hypot(horizontal, vertical)
+
+
+def _segment_distance(px, py, a, b) -> float:
+    ax, ay = a
+    bx, by = b
+    dx, dy = bx - ax, by - ay
+    t = 0.0 if dx == dy == 0 else max(0.0, min(1.0, ((px - ax) * dx + (py - ay) * dy) / (dx * dx + dy * dy)))
+    return math.hypot(px - ax - t * dx, py - ay - t * dy)
+
+
+def _validity_flags(site: LoadedSite, body_height: float) -> list[Flag]:
+    flags = []
+    accessible = [s for s in site.record.surfaces if s.access != "none"]
+    for antenna, emitter in zip(site.antennas, site.record.emitters):
+        reactive = float(wavelength_m(antenna.frequency_mhz)) / (2 * math.pi)
+        # The radiating elements span the aperture: measure from its ends (conservative).
+        half_extent = 0.5 * (antenna.diameter_m if antenna.kind == "dish" else (antenna.length_m or 0.0))
+        near = [
+            s.name for s in accessible
+            if distance_to_prism(antenna.position_m, s.outline, s.elevation_m, s.elevation_m + body_height)
+            - half_extent < reactive
+        ]
+        if near:
+            flags.append(Flag(
+                "reactive-near-field", "measure",
+                f"{antenna.id}: people on {', '.join(near)} can come within λ/2π = {reactive:.2f} m of the "
+                "antenna's elements, its reactive near field, where power density does not describe "
+                "exposure; keep them out (contact currents, RF burns) or measure E and H there.",
+                emitters=(antenna.id,), surface=near[0],
+            ))
+        if antenna.frequency_mhz < LOW_FREQUENCY_MHZ:
+            flags.append(Flag(
+                "low-frequency", "measure",
+                f"{antenna.id}: {antenna.frequency_mhz:g} MHz is below 30 MHz, where E and H must be assessed "
+                "separately; the power-density prediction is a plane-wave equivalent only.",
+                emitters=(antenna.id,),
+            ))
+        if emitter.power_reduction < 1.0:
+            flags.append(Flag(
+                "power-reduction-assumed", "measure",
+                f"{antenna.id}: assessed at {emitter.power_reduction:g} × maximum power (actual-maximum approach); "
+                "valid only where the site enforces it; confirm the enforcement and measure.",
+                emitters=(antenna.id,),
+            ))
+        if antenna.kind == "dish" and antenna.diameter_m:
+            crossing = _dish_beam_crossing(antenna, accessible, body_height)
+            if crossing:
+                flags.append(Flag(
+                    "dish-near-field-crossing", "measure",
+                    f"{antenna.id}: the near-field beam of the {antenna.diameter_m:g} m dish (out to "
+                    f"0.6·D²/λ = {0.6 * antenna.diameter_m**2 / antenna.wavelength_m:.1f} m) crosses {crossing}; "
+                    "the prediction there is an on-axis bound; measure.",
+                    emitters=(antenna.id,), surface=crossing,
+                ))
+    return flags
+
+
+def _dish_beam_crossing(antenna: Antenna, surfaces, body_height: float) -> str | None:
+    """Name of the first accessible surface that the dish's near-field beam cylinder
+    (diameter D, out to the far-field distance 0.6·D²/λ of OET 65) passes through."""
+    d = antenna.diameter_m
+    r_ff = 0.6 * d**2 / antenna.wavelength_m
+    az, el = math.radians(antenna.azimuth_deg), math.radians(antenna.elevation_deg)
+    axis = np.array([math.sin(az) * math.cos(el), math.cos(az) * math.cos(el), math.sin(el)])
+    origin = np.asarray(antenna.position_m)
+    for t in np.arange(d, r_ff + d / 4, d / 4):
+        p = origin + t * axis
+        for s in surfaces:
+            if distance_to_prism(p, s.outline, s.elevation_m, s.elevation_m + body_height) < d / 2:
+                return s.name
+    return None
+
+
+# --- the whole site --------------------------------------------------------------------------
+
+
+def assess(
+    site: LoadedSite,
+    *,
+    grid_m: float | None = None,
+    measure_above: float = MEASURE_ABOVE,
+    progress: ProgressCallback | None = None,
+) -> Assessment:
+    """Assess a whole site: every emitter over every surface and work position.
+
+    Parameters
+    ----------
+    site : LoadedSite
+        From :func:`exposure.loader.load_site`.
+    grid_m : float, optional
+        Overrides ``site.grid_m`` (map spacing) [m].
+    measure_above : float
+        Governing ratio at or above which a measurement is called for (default 0.5, the
+        model's ±3 dB band).
+    progress : callable, optional
+        Called as ``progress(done, total)`` in point-emitter units while surfaces are
+        evaluated.
+
+    Returns
+    -------
+    Assessment
+    """
+    if not 0 < measure_above <= 1:
+        from exposure.errors import InputError
+
+        raise InputError(f"--measure-above: {measure_above:g} must be in (0, 1]")
+    info = site.record.site
+    grid_m = grid_m or info.grid_m
+    offsets = body_offsets(info.body_height_m)
+    limits = site_limits(site)
+    factor = reflection_factor(site)
+
+    total_points = 0
+    for surface in site.record.surfaces:
+        _, _, inside = surface_cells(surface.outline, grid_m)
+        total_points += int(inside.sum()) * len(offsets) * len(site.antennas)
+    done_total = [0, total_points]
+    surfaces = []
+    for surface in site.record.surfaces:
+        grid, argmax_z, acc = _evaluate_surface(site, surface, limits, offsets, grid_m, progress, done_total)
+        surfaces.append((_surface_result(site, surface, grid, argmax_z, acc), acc))
+
+    public_headroom = np.full(len(site.antennas), np.inf)
+    for result, acc in surfaces:
+        if result.access == "public":
+            np.minimum(public_headroom, acc.headroom, out=public_headroom)
+
+    emitters = []
+    for i, (antenna, record) in enumerate(zip(site.antennas, site.record.emitters)):
+        limits_i = {tier: float(limits.limit[tier][i]) for tier in TIERS}
+        emitters.append(EmitterResult(
+            id=antenna.id,
+            operator=record.operator,
+            kind=antenna.kind,
+            frequency_mhz=antenna.frequency_mhz,
+            net_power_w=record.net_power_w,
+            gain_dbi=antenna.gain_dbi,
+            eirp_w=record.eirp_full_w,
+            erp_w=record.erp_full_w,
+            time_averaging_factor=record.time_averaging_factor,
+            model=model_for(antenna),
+            limit=LimitUsed(limits_i["general_public"], limits_i["occupational"], bool(limits.derived[i]),
+                            site.table.citation()),
+            boundary_m=emitter_boundaries(antenna, limits_i, factor),
+            main_beam_boundary_m={
+                tier: boresight_distance_to_limit(antenna, limits_i[tier], reflection=factor) for tier in TIERS
+            },
+            azimuth_deg=getattr(record, "azimuth_deg", None),
+            mech_tilt_deg=getattr(record, "mech_tilt_deg", None),
+            elec_tilt_deg=getattr(record, "elec_tilt_deg", None),
+            position_m=antenna.position_m,
+            transmitter_power_w=record.transmitter_power_w,
+            public_headroom_scale=None if math.isinf(public_headroom[i]) else float(public_headroom[i]),
+        ))
+
+    work = tuple(_work_position(site, w, limits, offsets) for w in site.record.work_positions)
+    surface_results = tuple(r for r, _ in surfaces)
+    flags = _flags(site, surface_results, work, emitters, limits, measure_above)
+    worst = max((SEVERITIES.index(f.severity) for f in flags), default=0)
+    operators: dict[str, list[str]] = {}
+    for e in site.record.emitters:
+        operators.setdefault(e.operator, []).append(e.id)
+    return Assessment(
+        site_id=info.id,
+        site_name=info.name,
+        source_file=site.path.name,
+        source_sha256=site.sha256,
+        tool_version=__version__,
+        standard=site.table.key,
+        standard_title=site.table.title,
+        standard_citation=site.table.citation(),
+        standard_status=site.table.status,
+        settings={
+            "ground_reflection": info.ground_reflection,
+            "reflection_factor": factor,
+            "body_height_m": info.body_height_m,
+            "height_samples_m": [round(float(v), 4) for v in offsets],
+            "evaluation": info.evaluation,
+            "grid_m": grid_m,
+            "measure_above": measure_above,
+        },
+        emitters=tuple(emitters),
+        surfaces=surface_results,
+        work_positions=work,
+        flags=tuple(flags),
+        verdict=VERDICT_OF_SEVERITY[SEVERITIES[worst]],
+        assumptions=tuple(_assumptions(site, grid_m, offsets, factor)),
+        operators=operators,
+    )
+
+
+def _pct(ratio: float) -> str:
+    return f"{100 * ratio:.0f} %" if ratio >= 0.1 else f"{100 * ratio:.2g} %"
+
+
+def _flags(site, surfaces, work, emitters, limits, measure_above) -> list[Flag]:
+    flags: list[Flag] = []
+    operator_of = {e.id: e.operator for e in emitters}
+    label = {"general_public": "general-public", "occupational": "occupational"}
+    for s in surfaces:
+        tier = s.governing_tier
+        if tier is None:
+            worst = max(s.max_ratio.values())
+            if worst > 1:
+                flags.append(Flag("exceedance-no-access", "info",
+                                  f"{s.name} (no access) reaches {_pct(worst)} of a limit; keep it closed to people.",
+                                  surface=s.name))
+            continue
+        ratio = s.max_ratio[tier]
+        if ratio > 1:
+            who = s.responsible[tier]
+            ops = sorted({operator_of[i] for i in who})
+            flags.append(Flag(
+                f"{'public' if tier == 'general_public' else 'occupational'}-exceedance", "mitigate",
+                f"{s.name} ({s.access}) reaches {_pct(ratio)} of the {label[tier]} limit at "
+                f"({s.max_at_m[tier][0]:.1f}, {s.max_at_m[tier][1]:.1f}) m; {s.area_above_m2[tier]:.1f} m² "
+                f"exceed it. Restrict access or reduce power. Shared responsibility (≥ 5 % of own limit): "
+                f"{', '.join(who) or 'none'} ({', '.join(ops) or '-'}).",
+                emitters=tuple(who), surface=s.name,
+            ))
+        elif ratio >= measure_above:
+            flags.append(Flag(
+                "near-limit", "measure",
+                f"{s.name} ({s.access}) reaches {_pct(ratio)} of the {label[tier]} limit, within the "
+                f"model's ±3 dB band (≥ {_pct(measure_above)}); confirm by measurement.",
+                surface=s.name,
+            ))
+        if tier == "occupational" and s.max_ratio["general_public"] > 1:
+            who = s.responsible["general_public"]
+            flags.append(Flag(
+                "access-control", "info",
+                f"{s.name}: {s.area_above_m2['general_public']:.1f} m² exceed the general-public limit "
+                f"(up to {_pct(s.max_ratio['general_public'])}); only trained workers may enter: access control "
+                "and signs at the boundary are needed.",
+                emitters=tuple(who), surface=s.name,
+            ))
+    for w in work:
+        if w.power_down:
+            flags.append(Flag(
+                "power-down-before-work", "info",
+                f"{w.name}: {_pct(w.ratio['occupational'])} of the occupational limit; power down and lock out "
+                f"{', '.join(w.power_down)} ({', '.join(w.power_down_operators)}) before work there.",
+                emitters=w.power_down, work_position=w.name,
+            ))
+    flags.extend(_validity_flags(site, site.record.site.body_height_m))
+    for i, antenna in enumerate(site.antennas):
+        if limits.derived[i]:
+            flags.append(Flag(
+                "limit-derived-from-field", "info",
+                f"{antenna.id}: the table gives only E and H at {antenna.frequency_mhz:g} MHz; the power-density "
+                "limit used is the plane-wave equivalent E²/Z₀.",
+                emitters=(antenna.id,),
+            ))
+    for warning in site.warnings:
+        flags.append(Flag("datasheet-check", "info", warning))
+    if site.table.status != "confirmed":
+        flags.append(Flag(
+            "limit-table-unconfirmed", "info",
+            f"The {site.table.key} limit table is marked '{site.table.status}': {site.table.status_note} "
+            "Check the values used against the published document.",
+        ))
+    return flags
+
+
+def _assumptions(site, grid_m, offsets, factor) -> list[Assumption]:
+    info = site.record.site
+    out = [
+        Assumption("Models", "Panels, omnis and arrays: synthetic multi-source model along the aperture with the "
+                   "antenna's pattern, capped by the spherical far-field value (OET 65; IEC 62232 practice). "
+                   "Dishes: OET 65 aperture model (near field, transition, far field) with a reference "
+                   "side-lobe pattern off axis."),
+        Assumption("Reflection", f"ground_reflection = {info.ground_reflection}: power density × {factor:g} "
+                   "everywhere (OET 65), conservative away from reflecting surfaces."),
+        Assumption("Heights", f"People are evaluated from each surface up to {info.body_height_m:g} m, sampled at "
+                   f"{len(offsets)} heights; the {'peak over' if info.evaluation == 'peak' else 'spatial average over'} "
+                   "that height is compared with the limit."),
+        Assumption("Grid", f"Surface maps at {grid_m:g} m cell spacing (cell centres); peaks between cells can be "
+                   "missed by up to the local gradient over half a cell."),
+        Assumption("Summation", "Total exposure ratio = Σ S_i / S_L,i over all emitters and frequencies, per tier; "
+                   "compliant where ≤ 1."),
+        Assumption("Left out", "Obstructions, parapets and people's bodies are not modelled (conservative: they "
+                   "shield); nearby sites and emitters not in the record are not included (not conservative)."),
+        Assumption("Patterns", "Parametric patterns from datasheet beamwidths, front-to-back ratio and a side-lobe "
+                   "floor stand in for measured patterns unless a pattern file is given."),
+    ]
+    for e in site.record.emitters:
+        if e.duty_factor < 1:
+            out.append(Assumption("Duty factor", f"{e.id}: time-averaged at {e.duty_factor:g} of full power."))
+        if e.power_reduction < 1:
+            out.append(Assumption("Power reduction", f"{e.id}: assessed at {e.power_reduction:g} × maximum power; "
+                                  "holds only where the site enforces it."))
+    return out
+
+
+def section(
+    site: LoadedSite,
+    emitter_id: str,
+    *,
+    half_length_m: float = 30.0,
+    z_range_m: tuple[float, float] | None = None,
+    step_m: float | None = None,
+) -> tuple[np.ndarray, np.ndarray, dict[str, np.ndarray]]:
+    """Total ratio per tier on a vertical plane along an emitter's boresight azimuth.
+
+    Returns ``(s_m, z_m, ratio)`` with ``s_m`` the horizontal distance from the emitter
+    along its azimuth (negative behind), ``z_m`` site heights and ``ratio[tier]`` of shape
+    (len(z_m), len(s_m)), summed over all emitters.
+    """
+    index = next((i for i, a in enumerate(site.antennas) if a.id == emitter_id), None)
+    if index is None:
+        from exposure.errors import UnknownKeyError
+
+        raise UnknownKeyError(f"emitter {emitter_id!r} is not in the site; known: {[a.id for a in site.antennas]}")
+    antenna = site.antennas[index]
+    if z_range_m is None:
+        floor = min(s.elevation_m for s in site.record.surfaces)
+        z_range_m = (floor, max(antenna.position_m[2] + 3.0, floor + site.record.site.body_height_m + 1.0))
+    step = step_m or max(0.05, half_length_m / 150)
+    s_axis = np.arange(-half_length_m, half_length_m + step / 2, step)
+    z_axis = np.arange(z_range_m[0], z_range_m[1] + step / 2, step)
+    direction = boundary_directions(antenna)["front"][0]
+    ss, zz = np.meshgrid(s_axis, z_axis)
+    points = np.empty(ss.shape + (3,))
+    points[..., 0] = antenna.position_m[0] + ss * direction[0]
+    points[..., 1] = antenna.position_m[1] + ss * direction[1]
+    points[..., 2] = zz
+    density = emitter_power_density(site, points)
+    limits = site_limits(site)
+    ratio = {t: np.tensordot(1.0 / limits.limit[t], density, axes=1) for t in TIERS}
+    return s_axis, z_axis, ratio

@@ -1,0 +1,286 @@
+"""The worksheet's wording and number formats: verdicts, controls, method, cautions.
+
+Everything here is plain text (no reportlab markup), so that it can be tested on its own
+and reused by other renderers. Numbers in the PDF are formatted only by the functions at
+the top of this module; tests format the JSON with the same functions to compare.
+"""
+
+from __future__ import annotations
+
+import math
+
+TIER_NAMES = {"general_public": "general public", "occupational": "occupational"}
+ACCESS_NAMES = {"public": "public", "occupational": "occupational (controlled)", "none": "no access"}
+ACCESS_SHORT = {"public": "public", "occupational": "occupational", "none": "no access"}
+SEVERITY_NAMES = {"mitigate": "MITIGATE", "measure": "MEASURE", "info": "info"}
+SEVERITY_ORDER = {"mitigate": 0, "measure": 1, "info": 2}
+EVALUATION_NAMES = {"peak": "spatial peak", "spatial-average": "spatial average"}
+
+FOOTER_NOTE = "prediction, not a measurement"
+
+
+# --- number formats ---------------------------------------------------------------------
+
+
+def number(value: float | None, digits: int = 3) -> str:
+    """A quantity to *digits* significant figures, thousands separated; '-' for None."""
+    if value is None or (isinstance(value, float) and math.isnan(value)):
+        return "-"
+    if value == 0:
+        return "0"
+    if abs(value) >= 10 ** digits:
+        return f"{value:,.0f}"
+    text = f"{value:.{digits}g}"
+    if "e" in text:  # tiny values: plain decimals, never exponents, in a worksheet
+        text = f"{value:.{digits + 2 - int(math.floor(math.log10(abs(value))))}f}".rstrip("0").rstrip(".")
+    return text
+
+
+def percent(ratio: float | None) -> str:
+    """An exposure ratio as a percentage of the limit: ``1.53`` -> ``'153 %'``."""
+    if ratio is None or (isinstance(ratio, float) and math.isnan(ratio)):
+        return "-"
+    value = 100.0 * ratio
+    if 0 < value < 0.01:
+        return "< 0.01 %"
+    return f"{number(value)} %"
+
+
+def distance(metres: float | None) -> str:
+    """A boundary distance [m]: '0' where the limit is never exceeded, else decimetres."""
+    if metres is None or (isinstance(metres, float) and math.isnan(metres)):
+        return "-"
+    if metres == 0:
+        return "0"
+    if metres < 1:
+        return f"{metres:.2f}"
+    return f"{metres:,.1f}"
+
+
+def area(square_metres: float | None) -> str:
+    """An area [m²] to 0.1 m²."""
+    if square_metres is None:
+        return "-"
+    if square_metres == 0:
+        return "0"
+    return f"{square_metres:,.1f}"
+
+
+def point(xyz) -> str:
+    """A site-frame point as ``(x, y, z)`` in metres to 0.1 m."""
+    return "(" + ", ".join(f"{float(c):.1f}" for c in xyz) + ")"
+
+
+def angle(degrees: float | None) -> str:
+    """An angle [deg] or '-' where the emitter has none (omni)."""
+    if degrees is None:
+        return "-"
+    return f"{degrees:g}"
+
+
+def scale_factor(scale: float | None) -> str:
+    """A power scale factor: ``0.42`` -> ``'× 0.42'``; '-' where none applies."""
+    if scale is None or not math.isfinite(scale):
+        return "-"
+    return f"× {number(scale, 2)}"
+
+
+# --- verdict and next steps -------------------------------------------------------------
+
+VERDICT_HEADLINES = {
+    "compliant": "COMPLIANT",
+    "verify-by-measurement": "VERIFY BY MEASUREMENT",
+    "mitigation-required": "MITIGATION REQUIRED",
+}
+
+VERDICT_SENTENCES = {
+    "compliant": (
+        "The predicted exposure stays within the limit that applies on every surface people "
+        "can reach, with the margin this assessment asks for. The result rests on the "
+        "assumptions in the method section."
+    ),
+    "verify-by-measurement": (
+        "The predicted exposure stays within the limits, but not by enough margin (or the "
+        "prediction is uncertain enough) that it can be relied on without a survey. A "
+        "qualified person should measure at the places flagged below."
+    ),
+    "mitigation-required": (
+        "The predicted exposure exceeds a limit where people can be. Controls are needed "
+        "before the site is operated as described in the input."
+    ),
+}
+
+
+def next_steps(assessment) -> list[str]:
+    """What must happen next, in order, from the verdict and the findings."""
+    steps: list[str] = []
+    public_over = [s for s in assessment.surfaces if s.compliant is False and s.governing_tier == "general_public"]
+    occ_over = [s for s in assessment.surfaces if s.compliant is False and s.governing_tier == "occupational"]
+    for s in public_over:
+        who = ", ".join(s.responsible.get("general_public", [])) or "the emitters reaching it"
+        scale = (f"; reducing every emitter to {number(s.headroom_factor, 2)} × its power would be enough"
+                 if s.headroom_factor else "")
+        steps.append(
+            f"Keep the public out of the zone on {s.name} where the general-public limit is "
+            f"exceeded (predicted maximum {percent(s.max_ratio['general_public'])} of the limit over "
+            f"{area(s.area_above_m2.get('general_public'))} m²): a barrier at the boundary shown on the "
+            f"map, or lower power from {who}{scale}. Until then the site does not comply."
+        )
+    for s in occ_over:
+        who = ", ".join(s.responsible.get("occupational", [])) or "the emitters reaching it"
+        steps.append(
+            f"Treat the zone on {s.name} above the occupational limit (maximum "
+            f"{percent(s.max_ratio['occupational'])}) as no-entry while transmitting: mark it, "
+            f"sign it, and power down {who} before anyone works inside it."
+        )
+    if any(f.severity == "measure" for f in assessment.flags):
+        steps.append(
+            "Have a qualified person measure where the findings ask for it, with an instrument "
+            "calibrated for the frequencies present, before relying on this prediction."
+        )
+    needs_power_down = [w for w in assessment.work_positions if w.power_down]
+    if needs_power_down:
+        steps.append(
+            "Before work at "
+            + ", ".join(w.name for w in needs_power_down)
+            + ": arrange power-down and lockout with the operators listed in the work-position table."
+        )
+    if any(s.max_ratio.get("general_public", 0) > 1 for s in assessment.surfaces):
+        steps.append("Post the signs and train the workers as listed under recommended controls.")
+    steps.append(
+        "Have the reviewing engineer check the inputs against the operators' current "
+        "configuration and sign this worksheet; repeat the assessment whenever an emitter changes."
+    )
+    return steps
+
+
+# --- controls (IEEE C95.7 sign categories, in our own words) -----------------------------
+
+SIGN_CATEGORIES = (
+    (
+        "NOTICE",
+        "At every way in to an area where the general-public limit may be exceeded (roof "
+        "doors, hatches, ladders, compound gates): tells people that transmitting antennas "
+        "are ahead and that they should follow the posted instructions.",
+    ),
+    (
+        "CAUTION",
+        "At the edge of any zone where the prediction exceeds the general-public limit but "
+        "stays within the occupational limit: only people trained and aware of the exposure "
+        "may enter, and they should not linger.",
+    ),
+    (
+        "WARNING",
+        "At the edge of any zone where the prediction exceeds the occupational limit: no one "
+        "enters while the antennas transmit; entry only after the listed power-down and "
+        "lockout.",
+    ),
+)
+
+SIGN_SOURCE = (
+    "Sign categories follow IEEE C95.7, Recommended Practice for Radio Frequency Safety "
+    "Programs; the sign designs themselves are set by the applicable sign standard and local "
+    "rules."
+)
+
+GENERAL_CONTROLS = (
+    (
+        "Personal RF monitors",
+        "Anyone working on a surface with a zone above a limit should wear a personal RF "
+        "monitor covering the frequencies present and leave the zone when it alarms.",
+    ),
+    (
+        "Training",
+        "Workers who enter occupational areas need RF safety awareness training: what the "
+        "signs and boundaries mean, how to arrange a power-down, and how to use a monitor.",
+    ),
+    (
+        "Records",
+        "Keep this worksheet, the sign and barrier locations, and the power-down contacts "
+        "with the site's records; update them whenever an emitter is added or changed.",
+    ),
+)
+
+
+# --- method and what the model leaves out ------------------------------------------------
+
+MODEL_NAMES = {
+    "synthetic": "synthetic multi-source aperture model",
+    "spherical": "far-field (spherical spreading) model",
+    "cylindrical": "near-field cylindrical model",
+    "aperture": "aperture (reflector) model",
+}
+
+LEFT_OUT = (
+    (
+        "Obstructions and shadowing",
+        "Parapets, plant, walls and people are not modelled: energy they would block is "
+        "counted as arriving. Usually conservative.",
+    ),
+    (
+        "Reflections from nearby metal",
+        "Only the ground-reflection factor is applied; a metal surface close to a person can "
+        "raise the field locally above the prediction. Not conservative near large metal "
+        "structures.",
+    ),
+    (
+        "Other sites",
+        "Transmitters not in the input (neighbouring roofs, towers, broadcast sites) add "
+        "exposure that is not included. Not conservative where such sites are near.",
+    ),
+    (
+        "Contact and induced currents, reactive near field",
+        "Currents through a body touching a conductor, and the reactive field within about "
+        "a wavelength of an antenna, are outside the model. Keep clear of the antennas.",
+    ),
+    (
+        "Traffic and configuration",
+        "Power, duty and power-reduction factors are taken as given; a change in the "
+        "operators' configuration changes the result.",
+    ),
+)
+
+CAUTIONS = (
+    (
+        "RF burns",
+        "Close to transmitting elements and feed lines, contact currents and burns are "
+        "possible even where the averaged exposure looks acceptable. Do not touch or stand "
+        "directly in front of an antenna.",
+    ),
+    (
+        "Medical implants",
+        "People with a pacemaker or another active implant may be affected below these "
+        "limits; they should follow their physician's and the device maker's advice before "
+        "entering any marked zone.",
+    ),
+    (
+        "Lockout",
+        "A power-down counts only when the operator has confirmed it and the transmitter is "
+        "locked or tagged out; confirm again before the work starts and restore power only "
+        "when everyone has left the zone.",
+    ),
+    (
+        "Limits of prediction",
+        "These are predictions from simplified models and the inputs as given, not "
+        "measurements. They are no substitute for a survey where one is flagged.",
+    ),
+    (
+        "Codes and professionals",
+        "Local codes and regulations govern. This worksheet supports, and does not replace, "
+        "the judgement of a licensed or qualified professional, who should review it before "
+        "it is relied on.",
+    ),
+)
+
+FIVE_PERCENT_RULE = (
+    "Where a limit is exceeded, every operator whose emitters contribute 5 % or more of "
+    "that limit at the place of exceedance shares responsibility for bringing it into "
+    "compliance (the FCC's rule in 47 CFR 1.1307; other codes have similar provisions, and "
+    "the applicable one governs)."
+)
+
+SIGN_OFF_FIELDS = ("Name", "Licence or registration no.", "Signature", "Date")
+SIGN_OFF_TEXT = (
+    "I have reviewed the inputs, method and results of this worksheet. Conclusion "
+    "(circle one): accepted / accepted with the conditions below / not accepted."
+)

@@ -652,6 +652,7 @@ def _flags(site, surfaces, work, emitters, limits, measure_above) -> list[Flag]:
 
 def _assumptions(site, grid_m, offsets, factor) -> list[Assumption]:
     info = site.record.site
+    tabulated = [e.id for e in site.record.emitters if e.pattern_file]
     out = [
         Assumption("Models", "Panels, omnis and arrays: synthetic multi-source model along the aperture with the "
                    "antenna's pattern, capped by the spherical far-field value (OET 65; IEC 62232 practice). "
@@ -668,8 +669,12 @@ def _assumptions(site, grid_m, offsets, factor) -> list[Assumption]:
                    "compliant where ≤ 1."),
         Assumption("Left out", "Obstructions, parapets and people's bodies are not modelled (conservative: they "
                    "shield); nearby sites and emitters not in the record are not included (not conservative)."),
-        Assumption("Patterns", "Parametric patterns from datasheet beamwidths, front-to-back ratio and a side-lobe "
-                   "floor stand in for measured patterns unless a pattern file is given."),
+        Assumption("Patterns", "Parametric patterns (3GPP TR 36.814/38.901 form) from datasheet beamwidths, "
+                   "front-to-back ratio and a side-lobe floor stand in for measured patterns"
+                   + (f"; tabulated cuts are used for {', '.join(tabulated)}." if tabulated else ".")),
+        Assumption("Near field", "In front of a panel the synthetic model spreads the datasheet gain over the "
+                   "pattern; it predicts less than OET 65's cylindrical formula, which puts all power inside the "
+                   "half-power beamwidth. `exposure screen --model cylindrical` gives that bound for comparison."),
     ]
     for e in site.record.emitters:
         if e.duty_factor < 1:

@@ -307,3 +307,38 @@ def test_fail_on_exit_code(load, tmp_path):
     assert plain.exit_code == 0 and "mitigation-required" in plain.output
     assert runner.invoke(app, ["assess", str(path), "--quiet", "--fail-on", "mitigation-required"]).exit_code == 3
     assert runner.invoke(app, ["assess", str(path), "--grid-m", "0"]).exit_code == 2
+
+
+def test_python_api_matches_the_cli_json():
+    """exposure.assess(path) gives the same content as `exposure assess --json`."""
+    import exposure
+
+    path = "sample_sites/monopole-willow-park.toml"
+    result = exposure.assess(path, grid_m=4.0)
+    cli = runner.invoke(app, ["assess", path, "--json", "--grid-m", "4"])
+    assert json.loads(cli.output) == json.loads(json.dumps(result.to_json()))
+    assert exposure.assess(exposure.load_site(path), grid_m=4.0).verdict == result.verdict
+
+
+def test_site_limits_file_key_is_used(tmp_path):
+    """A local code's table named by site.limits_file (relative to the record) replaces the
+    standard; a missing one is refused naming the key. The local table here is a renamed copy
+    of the FCC file, so the ratios must equal the FCC ones."""
+    import shutil
+
+    from exposure.limits import load_standard
+
+    base = site_dict([panel()])
+    (tmp_path / "a.json").write_text(json.dumps(base))
+    local = tmp_path / "local.toml"
+    shutil.copy(load_standard("fcc").path, local)
+    local.write_text(local.read_text().replace('key = "fcc"', 'key = "local-code"', 1))
+    base["site"]["limits_file"] = "local.toml"
+    (tmp_path / "b.json").write_text(json.dumps(base))
+    a, b = load_site(tmp_path / "a.json"), load_site(tmp_path / "b.json")
+    assert (a.table.key, b.table.key) == ("fcc", "local-code")
+    assert probe(b, (0, 10, 1.4))["total_ratio"] == probe(a, (0, 10, 1.4))["total_ratio"]
+    base["site"]["limits_file"] = "missing.toml"
+    (tmp_path / "c.json").write_text(json.dumps(base))
+    bad = runner.invoke(app, ["validate", str(tmp_path / "c.json")])
+    assert bad.exit_code == 2 and "site.limits_file" in bad.output

@@ -12,7 +12,7 @@ from typer.testing import CliRunner
 
 from exposure.cli import app
 
-from conftest import BASE_RECORD, SAMPLE_SITES
+from conftest import BASE_RECORD, REPO, SAMPLE_SITES
 
 runner = CliRunner()
 
@@ -234,3 +234,22 @@ def test_random_records_never_traceback(tmp_path, changes):
     result = run("validate", path)
     assert result.exit_code in (0, 2), result.output
     assert "Traceback" not in result.output and "internal error" not in result.output
+
+
+def test_pattern_file_problems_name_the_emitter(record, write_record, tmp_path):
+    """A pattern file is read relative to the record; a missing or malformed one is refused
+    with the emitter's field path and the file's own line."""
+    record["emitters"][0]["pattern_file"] = "nope.csv"
+    assert_refused(run("validate", write_record(record)), "emitters[0].pattern_file", "no such file")
+    (tmp_path / "bad.csv").write_text("plane,angle_deg,attenuation_db\nh,0,0\nq,5,1\n")
+    record["emitters"][0]["pattern_file"] = "bad.csv"
+    assert_refused(run("validate", write_record(record)), "emitters[0].pattern_file", "bad.csv")
+
+
+def test_sample_pattern_file_is_used():
+    """The demo roof's A3 carries tabulated cuts; they reach its Antenna."""
+    from exposure.loader import load_site
+
+    site = load_site(REPO / "sample_sites" / "rooftop-larkspur.toml")
+    a3 = next(a for a in site.antennas if a.id == "A3")
+    assert a3.pattern is not None and len(a3.pattern.v_angle_deg) == 181

@@ -47,7 +47,7 @@ CASES = (
     ("spherical (panel)", PANEL, "spherical"),
     ("cylindrical (panel)", PANEL, "cylindrical"),
     ("synthetic (panel)", PANEL, "synthetic"),
-    ("auto (panel: min of synthetic, spherical)", PANEL, "auto"),
+    ("auto (panel: synthetic, capped at peak spherical)", PANEL, "auto"),
     ("aperture (dish)", DISH, "aperture"),
     ("auto (panel, tabulated cuts)", TABULATED, "auto"),
 )

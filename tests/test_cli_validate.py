@@ -253,3 +253,12 @@ def test_sample_pattern_file_is_used():
     site = load_site(REPO / "sample_sites" / "rooftop-larkspur.toml")
     a3 = next(a for a in site.antennas if a.id == "A3")
     assert a3.pattern is not None and len(a3.pattern.v_angle_deg) == 181
+
+
+def test_pattern_diagnostics(record, write_record):
+    """``--patterns``: a single-beam panel radiates at most what it is fed, so ∫G dΩ/4π ≤ 1.1
+    (energy conservation, with this project's 10 % tolerance for the parametric form)."""
+    result = run("validate", write_record(record), "--patterns", "--json")
+    assert result.exit_code == 0, result.output
+    panel = json.loads(result.output)["emitters"][0]
+    assert 0.25 < panel["pattern_efficiency"] <= 1.1

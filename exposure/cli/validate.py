@@ -15,6 +15,11 @@ def validate(
     standard: StandardOption = None,
     limits_file: LimitsFileOption = None,
     json_out: JsonOption = False,
+    patterns: Annotated[
+        bool,
+        typer.Option("--patterns", help="Also integrate each pattern over the sphere (efficiency ∫G dΩ/4π) "
+                     "and check that gain and beamwidths can both be true (slower)."),
+    ] = False,
 ) -> None:
     """Check site records; print each emitter with its EIRP and ERP, and any warnings."""
     from exposure.errors import InputError
@@ -30,17 +35,28 @@ def validate(
         except InputError as exc:
             failed.extend(exc.lines())
             continue
-        summaries.append(_summary(site))
+        summary = _summary(site, patterns)
+        summaries.append(summary)
         if not json_out:
-            _render(site)
+            _render(site, summary)
     if json_out:
         print_json(summaries if len(sites) > 1 else (summaries[0] if summaries else None))
     if failed:
         raise fail(failed)
 
 
-def _summary(site) -> dict:
+def _summary(site, patterns: bool = False) -> dict:
     record = site.record
+    warnings = list(site.warnings)
+    efficiency: dict[str, float] = {}
+    if patterns:
+        from exposure.patterns import check_gain_beamwidths, pattern_efficiency
+
+        for antenna in site.antennas:
+            efficiency[antenna.id] = float(pattern_efficiency(antenna))
+            problem = check_gain_beamwidths(antenna)
+            if problem:
+                warnings.append(problem)
     return {
         "file": str(site.path),
         "sha256": site.sha256,
@@ -59,14 +75,15 @@ def _summary(site) -> dict:
                 "erp_w": e.erp_full_w,
                 "duty_factor": e.duty_factor,
                 "time_averaged_eirp_w": e.eirp_avg_w,
+                **({"pattern_efficiency": efficiency[e.id]} if patterns else {}),
             }
             for e in record.emitters
         ],
-        "warnings": list(site.warnings),
+        "warnings": warnings,
     }
 
 
-def _render(site) -> None:
+def _render(site, summary: dict) -> None:
     from rich.markup import escape as esc
     from rich.table import Table
 
@@ -79,15 +96,27 @@ def _render(site) -> None:
         markup=True,
     )
     table = Table(show_edge=False, header_style="bold")
-    for col in ("id", "kind", "operator", "MHz", "net W", "gain dBi", "EIRP W", "ERP W", "duty"):
+    columns = ["id", "kind", "MHz", "net W", "gain dBi", "EIRP W", "ERP W", "duty"]
+    with_patterns = "pattern_efficiency" in summary["emitters"][0]
+    if with_patterns:
+        columns.append("∫G/4π")
+    columns.append("operator")
+    for col in columns:
         table.add_column(col, justify="left" if col in ("id", "kind", "operator") else "right")
-    for e in record.emitters:
-        table.add_row(
-            esc(e.id), e.kind, esc(e.operator), fmt(e.frequency_mhz, 5), fmt(e.net_power_w), f"{e.peak_gain_dbi:.1f}",
+    for e, s in zip(record.emitters, summary["emitters"]):
+        row = [
+            esc(e.id), e.kind, fmt(e.frequency_mhz, 5), fmt(e.net_power_w), f"{e.peak_gain_dbi:.1f}",
             fmt(e.eirp_full_w), fmt(e.erp_full_w), f"{e.duty_factor:g}",
-        )
+        ]
+        if with_patterns:
+            row.append(f"{s['pattern_efficiency']:.2f}")
+        table.add_row(*row, esc(e.operator))
     out.print(table)
-    for warning in site.warnings:
+    if with_patterns:
+        out.print("∫G/4π: the pattern's gain integrated over the sphere; above 1 for envelopes (arrays over "
+                  "their scan, reference side-lobe patterns), near the radiation efficiency for a single beam.",
+                  markup=False)
+    for warning in summary["warnings"]:
         out.print(f"warning: {warning}", markup=False)
 
 

@@ -17,6 +17,7 @@ from typing import Annotated, Any
 import typer
 
 from exposure.errors import InputError, UnknownKeyError
+from exposure.cli.common import fmt
 
 SCREEN_MODELS = ("auto", "spherical", "cylindrical", "synthetic", "aperture")
 REFLECTIONS = ("none", "typical", "full")
@@ -249,23 +250,13 @@ def _flat_vertical(antenna):
     return replace(antenna, v_beamwidth_deg=180.0, sidelobe_floor_db=0.0)
 
 
-def _fmt(value: float | None) -> str:
-    if value is None:
-        return "-"
-    if value == 0:
-        return "0"
-    if abs(value) >= 1000:
-        return f"{value:,.0f}"
-    return f"{value:.3g}"
-
-
 def _text(r: dict[str, Any]) -> str:
     tiers = list(r["limits_w_m2"])
     lines = [
-        f"Screening at {_fmt(r['frequency_mhz'])} MHz: EIRP {_fmt(r['eirp_w'])} W, ERP {_fmt(r['erp_w'])} W"
-        + (f" (net power {_fmt(r['net_power_w'])} W, gain {r['gain_dbi']:.1f} dBi)" if r["net_power_w"] is not None else ""),
+        f"Screening at {fmt(r['frequency_mhz'])} MHz: EIRP {fmt(r['eirp_w'])} W, ERP {fmt(r['erp_w'])} W"
+        + (f" (net power {fmt(r['net_power_w'])} W, gain {r['gain_dbi']:.1f} dBi)" if r["net_power_w"] is not None else ""),
         f"Limits, {r['citation']}: "
-        + ", ".join(f"{t.replace('_', ' ')} {_fmt(v)} W/m2" for t, v in r["limits_w_m2"].items())
+        + ", ".join(f"{t.replace('_', ' ')} {fmt(v)} W/m2" for t, v in r["limits_w_m2"].items())
         + f"; ground reflection {r['reflection']} (x{r['reflection_factor']:g})",
         "",
         "Distance along the main beam to the limit [m]:",
@@ -273,9 +264,9 @@ def _text(r: dict[str, Any]) -> str:
     ]
     for name, values in r["models"].items():
         mark = "*" if name == r["model"] else " "
-        lines.append(f"{mark} {name:<13s}" + "".join(f"{_fmt(values[t]):>16s}" for t in tiers))
+        lines.append(f"{mark} {name:<13s}" + "".join(f"{fmt(values[t]):>16s}" for t in tiers))
     if r["model_requested"] == "auto" and r["model"] == "synthetic" and r["boundary_m"] != r["models"].get("synthetic"):
-        lines.append(f"* {'auto':<13s}" + "".join(f"{_fmt(r['boundary_m'][t]):>16s}" for t in tiers))
+        lines.append(f"* {'auto':<13s}" + "".join(f"{fmt(r['boundary_m'][t]):>16s}" for t in tiers))
     for name, why in r["not_applicable"].items():
         lines.append(f"  {name:<13s} not applicable: {why}")
     lines.append(f"(* the model used{' by auto' if r['model_requested'] == 'auto' else ''}: {r['model']})")
@@ -285,8 +276,8 @@ def _text(r: dict[str, Any]) -> str:
         if ex["applicable"]:
             verdict = "exempt" if ex["exempt"] else "not exempt"
             lines.append(
-                f"Exemption, {ex['citation']}: ERP threshold {_fmt(ex['erp_threshold_w'])} W at "
-                f"{_fmt(ex['distance_m'])} m; ERP {_fmt(r['erp_w'])} W: {verdict} from routine evaluation"
+                f"Exemption, {ex['citation']}: ERP threshold {fmt(ex['erp_threshold_w'])} W at "
+                f"{fmt(ex['distance_m'])} m; ERP {fmt(r['erp_w'])} W: {verdict} from routine evaluation"
             )
         else:
             lines.append(f"Exemption, {ex['citation']}: {ex['note']}")

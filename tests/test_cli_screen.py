@@ -19,6 +19,10 @@ def run(*args: str):
 
 
 def screen_json(*args: str) -> dict:
+    """The JSON of a screen run; free space (--reflection none) unless the test says otherwise,
+    so the closed forms compare directly."""
+    if "--reflection" not in args:
+        args = (*args, "--reflection", "none")
     result = run(*args, "--json")
     assert result.exit_code == 0, result.output
     return json.loads(result.stdout)
@@ -134,3 +138,9 @@ def test_bad_options_exit_2_naming_the_option(args, message):
     assert result.exit_code == 2, result.output
     assert message in result.stderr
     assert "Traceback" not in result.output
+
+
+def test_default_reflection_is_the_site_default():
+    """Without --reflection, screen uses 'typical' (x2.56, OET 65), as site records do."""
+    result = run("--frequency-mhz", "1960", "--eirp-w", "2000", "--model", "spherical", "--json")
+    assert json.loads(result.stdout)["reflection_factor"] == 2.56

@@ -59,7 +59,7 @@ def screen(
     aperture_efficiency: Annotated[
         float, typer.Option("--aperture-efficiency", help="Dish aperture efficiency, 0-1 (aperture).")
     ] = 0.55,
-    reflection: Annotated[str, typer.Option("--reflection", help="Ground reflection: none (x1) | typical (x2.56) | full (x4).")] = "none",
+    reflection: Annotated[str, typer.Option("--reflection", help="Ground reflection on power density: none (x1) | typical (x2.56, the default, as for site records) | full (x4); OET 65.")] = "typical",
     standard: Annotated[str, typer.Option("--standard", help="Limit table: fcc | icnirp-2020 | icnirp-1998 | canada-sc6.")] = "fcc",
     distance_m: Annotated[
         float | None,

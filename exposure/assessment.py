@@ -204,7 +204,7 @@ def _evaluate_surface(site, surface, limits: SiteLimits, offsets, grid_m, progre
         for i, antenna in enumerate(site.antennas):
             density[i] = power_density(antenna, points, reflection=factor)
             if progress:
-                done_total[0] += n_c
+                done_total[0] += n_c * n_h
                 progress(done_total[0], done_total[1])
         for tier in TIERS:
             total = np.tensordot(inverse[tier], density, axes=1)  # Σ_i S_i / S_L,i: (n_c, n_h)

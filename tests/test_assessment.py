@@ -342,3 +342,11 @@ def test_site_limits_file_key_is_used(tmp_path):
     (tmp_path / "c.json").write_text(json.dumps(base))
     bad = runner.invoke(app, ["validate", str(tmp_path / "c.json")])
     assert bad.exit_code == 2 and "site.limits_file" in bad.output
+
+
+def test_progress_reaches_its_total(load):
+    """The progress callback counts point-emitter pairs and ends exactly at its total."""
+    calls = []
+    assess(load(site_dict([panel(), panel(id="P2", x_m=1.0)])), progress=lambda done, total: calls.append((done, total)))
+    assert calls and calls[-1][0] == calls[-1][1]
+    assert all(a[0] <= b[0] for a, b in zip(calls, calls[1:]))

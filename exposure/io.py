@@ -26,6 +26,7 @@ def atomic_write(path: str | Path, write: Callable[[Any], None], mode: str = "wb
             write(handle)
             handle.flush()
             os.fsync(handle.fileno())
+        os.chmod(tmp, 0o666 & ~_umask())  # mkstemp makes 0600; outputs get the usual mode
         os.replace(tmp, path)
     except BaseException:
         Path(tmp).unlink(missing_ok=True)
@@ -42,3 +43,10 @@ def atomic_write_json(path: str | Path, payload: Any) -> Path:
     """Write *payload* as indented UTF-8 JSON to *path* atomically."""
     text = json.dumps(payload, indent=2, ensure_ascii=False, allow_nan=False) + "\n"
     return atomic_write_bytes(path, text.encode("utf-8"))
+
+
+def _umask() -> int:
+    """The process's file-creation mask (read by setting it and putting it back)."""
+    mask = os.umask(0)
+    os.umask(mask)
+    return mask

@@ -334,3 +334,19 @@ def test_cli_bad_site_is_one_line_exit_2(tmp_path):
     assert result.exit_code == 2
     assert "no such file" in result.output and "Traceback" not in result.output
     assert not list(tmp_path.iterdir())
+
+
+def test_outputs_get_the_usual_file_mode(tmp_path):
+    """Atomic writes (a temporary file renamed) still give files the mode the umask allows,
+    not the temporary file's 0600 (POSIX open(2) semantics)."""
+    import os
+    import stat
+
+    from exposure.io import atomic_write_bytes
+
+    mask = os.umask(0o022)
+    try:
+        path = atomic_write_bytes(tmp_path / "out.json", b"{}")
+    finally:
+        os.umask(mask)
+    assert stat.S_IMODE(path.stat().st_mode) == 0o644

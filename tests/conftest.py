@@ -46,3 +46,44 @@ def write_record(tmp_path):
         return path
 
     return write
+
+
+# --- a user's own limit table (a local code), in the schema of limits/*.toml ----------------
+# Invented test data: flat 1 W/m² (public) and 5 W/m² (workers) from 100 to 1000 MHz, then
+# rising as f/1000 (×5 for workers) to 6000 MHz.
+
+_BAND = """
+[[tiers.{tier}.bands]]
+f_min_mhz = {f_min}
+f_max_mhz = {f_max}
+e_v_m = {{ printed = "–" }}
+h_a_m = {{ printed = "–" }}
+power_density_w_m2 = {s}
+averaging_min = {{ printed = "6", printed_unit = "min", coef = 6, exponent = 0, f_unit = "MHz" }}
+"""
+USER_S_FLAT = '{ printed = "1", printed_unit = "W/m²", coef = 1, exponent = 0, f_unit = "MHz" }'
+_S_RISING = '{ printed = "f/1000", printed_unit = "W/m²", coef = 0.001, exponent = 1, f_unit = "MHz" }'
+
+
+def user_tier(tier: str, label: str, scale: int = 1) -> str:
+    flat = USER_S_FLAT.replace('"1"', f'"{scale}"').replace("coef = 1,", f"coef = {scale},")
+    rising = _S_RISING.replace("coef = 0.001", f"coef = {0.001 * scale:g}")
+    return (
+        f'\n[tiers.{tier}]\nlabel = "{label}"\n'
+        + _BAND.format(tier=tier, f_min=100, f_max=1000, s=flat)
+        + _BAND.format(tier=tier, f_min=1000, f_max=6000, s=rising)
+    )
+
+
+USER_HEADER = """\
+schema = "exposure-limits/1"
+key = "local-code"
+title = "Local code (written for this test)"
+source = "Municipal ordinance 12/2024"
+edition = "2024"
+table = "Schedule A"
+status = "confirmed"
+status_note = "Test data: nothing from memory."
+frequency_unit = "MHz"
+"""
+USER_TABLE = USER_HEADER + user_tier("general_public", "Public", 1) + user_tier("occupational", "Workers", 5)

@@ -13,6 +13,7 @@ from typer.testing import CliRunner
 
 from exposure.cli import app
 from exposure.limits import STANDARDS
+from conftest import USER_TABLE
 
 runner = CliRunner()
 
@@ -157,39 +158,6 @@ def test_frequency_not_a_number_exits_2():
     assert "'two-gigahertz' is not a number" in result.stderr
 
 
-USER_TABLE = """\
-schema = "exposure-limits/1"
-key = "local-code"
-title = "Local code (written for this test)"
-source = "Municipal ordinance 12/2024"
-edition = "2024"
-table = "Schedule A"
-status = "confirmed"
-status_note = "Test data: nothing from memory."
-frequency_unit = "MHz"
-
-[tiers.general_public]
-label = "Public"
-
-[[tiers.general_public.bands]]
-f_min_mhz = 100
-f_max_mhz = 6000
-e_v_m = { printed = "–" }
-h_a_m = { printed = "–" }
-power_density_w_m2 = { printed = "1", printed_unit = "W/m²", coef = 1, exponent = 0, f_unit = "MHz" }
-averaging_min = { printed = "6", printed_unit = "min", coef = 6, exponent = 0, f_unit = "MHz" }
-
-[tiers.occupational]
-label = "Workers"
-
-[[tiers.occupational.bands]]
-f_min_mhz = 100
-f_max_mhz = 6000
-e_v_m = { printed = "–" }
-h_a_m = { printed = "–" }
-power_density_w_m2 = { printed = "5", printed_unit = "W/m²", coef = 5, exponent = 0, f_unit = "MHz" }
-averaging_min = { printed = "6", printed_unit = "min", coef = 6, exponent = 0, f_unit = "MHz" }
-"""
 
 
 def test_limits_file_wins_over_standard(tmp_path):

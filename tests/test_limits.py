@@ -16,6 +16,7 @@ from pathlib import Path
 
 import pytest
 
+from conftest import USER_HEADER, USER_S_FLAT, USER_TABLE, user_tier
 from exposure.errors import InputError, OutOfRangeError, UnknownKeyError
 from exposure.limits import (
     STANDARDS,
@@ -532,41 +533,6 @@ def test_resolve(tmp_path):
 # --------------------------------------------------------------------------------------
 # A user's own table
 
-_BAND = """
-[[tiers.{tier}.bands]]
-f_min_mhz = {f_min}
-f_max_mhz = {f_max}
-e_v_m = {{ printed = "–" }}
-h_a_m = {{ printed = "–" }}
-power_density_w_m2 = {s}
-averaging_min = {{ printed = "6", printed_unit = "min", coef = 6, exponent = 0, f_unit = "MHz" }}
-"""
-_S_FLAT = '{ printed = "1", printed_unit = "W/m²", coef = 1, exponent = 0, f_unit = "MHz" }'
-_S_RISING = '{ printed = "f/1000", printed_unit = "W/m²", coef = 0.001, exponent = 1, f_unit = "MHz" }'
-
-
-def _tier(tier: str, label: str, scale: int = 1) -> str:
-    flat = _S_FLAT.replace('"1"', f'"{scale}"').replace("coef = 1,", f"coef = {scale},")
-    rising = _S_RISING.replace("coef = 0.001", f"coef = {0.001 * scale:g}")
-    return (
-        f'\n[tiers.{tier}]\nlabel = "{label}"\n'
-        + _BAND.format(tier=tier, f_min=100, f_max=1000, s=flat)
-        + _BAND.format(tier=tier, f_min=1000, f_max=6000, s=rising)
-    )
-
-
-USER_HEADER = """\
-schema = "exposure-limits/1"
-key = "local-code"
-title = "Local code (written for this test)"
-source = "Municipal ordinance 12/2024"
-edition = "2024"
-table = "Schedule A"
-status = "confirmed"
-status_note = "Test data: nothing from memory."
-frequency_unit = "MHz"
-"""
-USER_TABLE = USER_HEADER + _tier("general_public", "Public", 1) + _tier("occupational", "Workers", 5)
 
 
 def _write(tmp_path: Path, text: str, name: str = "local.toml") -> Path:
@@ -697,7 +663,7 @@ GP_BANDS = "tiers.general_public.bands"
             id="bad-frequency-unit",
         ),
         pytest.param(
-            lambda t: t.replace(_S_FLAT, '{ printed = "–" }', 1),
+            lambda t: t.replace(USER_S_FLAT, '{ printed = "–" }', 1),
             f"{GP_BANDS}[0]: gives neither power_density_w_m2 nor e_v_m",
             id="band-without-a-limit",
         ),
@@ -711,11 +677,11 @@ def test_broken_limits_file_names_the_field(tmp_path, change, expected):
 
 def test_unsorted_bands_are_refused(tmp_path):
     """Bands written in descending order name the band that is out of order."""
-    tier = _tier("general_public", "Public")
+    tier = user_tier("general_public", "Public")
     first, second = tier.split("\n[[tiers.general_public.bands]]")[1:]
     swapped = '\n[tiers.general_public]\nlabel = "Public"\n'
     swapped += "\n[[tiers.general_public.bands]]" + second + "\n[[tiers.general_public.bands]]" + first
-    problems = _problems(tmp_path, USER_HEADER + swapped + _tier("occupational", "Workers", 5))
+    problems = _problems(tmp_path, USER_HEADER + swapped + user_tier("occupational", "Workers", 5))
     assert any(p.startswith(f"{GP_BANDS}[1].f_min_mhz: 100 is below") for p in problems), problems
 
 

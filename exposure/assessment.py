@@ -178,22 +178,29 @@ class _SurfaceAccumulator:
         return cls(n, {t: np.zeros(n) for t in TIERS}, np.full(n, np.inf))
 
 
-def _evaluate_surface(site, surface, limits: SiteLimits, offsets, grid_m, progress, done_total):
+@dataclass(frozen=True)
+class _Columns:
+    """Totals on vertical columns of points (a person's height above surface points)."""
+
+    x: np.ndarray
+    y: np.ndarray
+    ratio: dict[str, np.ndarray]  # tier -> reduced total per column
+    at_z: dict[str, np.ndarray]  # tier -> height of the column's peak (its base for averages)
+
+
+def _evaluate_columns(site, surface, limits: SiteLimits, offsets, cx, cy, acc, progress=None, done_total=None) -> _Columns:
+    """Total exposure ratio per tier over the body height above each (cx, cy), in chunks
+    of bounded size; updates the surface's shares (5 % rule) and headroom as it goes."""
     evaluation = site.record.site.evaluation
-    x, y, inside = surface_cells(surface.outline, grid_m)
-    cell_index = np.flatnonzero(inside.ravel())
-    gx, gy = np.meshgrid(x, y)
-    cx, cy = gx.ravel()[cell_index], gy.ravel()[cell_index]
     n_e, n_h = len(site.antennas), len(offsets)
     z = surface.elevation_m + offsets
-    maps = {tier: np.full(inside.size, np.nan) for tier in TIERS}
-    argmax_z = {tier: np.zeros(inside.size) for tier in TIERS}
-    acc = _SurfaceAccumulator.new(n_e)
     inverse = limits.inverse
     governing = ACCESS_TIER.get(surface.access)
     factor = reflection_factor(site)
+    ratio = {tier: np.empty(len(cx)) for tier in TIERS}
+    at_z = {tier: np.empty(len(cx)) for tier in TIERS}
     chunk = max(1, POINT_BUDGET // (n_e * n_h))
-    for start in range(0, len(cell_index), chunk):
+    for start in range(0, len(cx), chunk):
         sl = slice(start, start + chunk)
         n_c = len(cx[sl])
         points = np.empty((n_c, n_h, 3))
@@ -209,16 +216,83 @@ def _evaluate_surface(site, surface, limits: SiteLimits, offsets, grid_m, progre
         for tier in TIERS:
             total = np.tensordot(inverse[tier], density, axes=1)  # Σ_i S_i / S_L,i: (n_c, n_h)
             reduced = reduce_over_height(total, evaluation)
-            maps[tier][cell_index[sl]] = reduced
-            argmax_z[tier][cell_index[sl]] = z[np.argmax(total, axis=1)] if evaluation == "peak" else z[0]
+            ratio[tier][sl] = reduced
+            at_z[tier][sl] = z[np.argmax(total, axis=1)] if evaluation == "peak" else z[0]
             exceeding = reduced > 1.0
             if exceeding.any():
                 share = density[:, exceeding, :].max(axis=2).max(axis=1) * inverse[tier]
                 np.maximum(acc.exceed_share[tier], share, out=acc.exceed_share[tier])
             if tier == governing and surface.access == "public":
                 _update_headroom(acc.headroom, density * inverse[tier][:, None, None], total, reduced, evaluation)
+    return _Columns(cx, cy, ratio, at_z)
+
+
+HOT_SPOT_FROM_M = 0.1
+"""Nearest hot spot in front of an antenna [m]: about the depth of a panel's radome, since
+nobody stands inside the antenna itself."""
+
+
+def hot_spots(surface, antennas: Sequence[Antenna], body_height_m: float) -> tuple[np.ndarray, np.ndarray]:
+    """Points of a surface where an emitter's field peaks and a grid can miss it.
+
+    For each emitter: points along its boresight azimuth from ``HOT_SPOT_FROM_M`` to 20 m
+    (log-spaced), and the point of the outline nearest below it where people can stand
+    under the antenna (its lowest part above their heads), wherever they fall on the
+    surface. Evaluated besides the grid so that a narrow zone in front of or below an
+    antenna is never lost between cell centres (conservative).
+    """
+    outline = surface.outline
+    top = surface.elevation_m + body_height_m
+    xs, ys = [], []
+    steps = np.geomspace(HOT_SPOT_FROM_M, 20.0, 48)
+    for antenna in antennas:
+        ax, ay = antenna.position_m[0], antenna.position_m[1]
+        az = math.radians(antenna.azimuth_deg)
+        xs.extend(ax + steps * math.sin(az))
+        ys.extend(ay + steps * math.cos(az))
+        half = 0.5 * ((antenna.diameter_m if antenna.kind == "dish" else antenna.length_m) or 0.0)
+        if antenna.position_m[2] - half > top:
+            nx, ny = _nearest_inside(ax, ay, outline)
+            xs.append(nx)
+            ys.append(ny)
+    x, y = np.array(xs), np.array(ys)
+    keep = points_in_polygon(x, y, outline)
+    return x[keep], y[keep]
+
+
+def _nearest_inside(px: float, py: float, outline) -> tuple[float, float]:
+    """The point of the polygon nearest to (px, py), moved 1 mm inside when on an edge."""
+    if points_in_polygon(np.array([px]), np.array([py]), outline)[0]:
+        return px, py
+    best = None
+    for k in range(len(outline)):
+        (ax, ay), (bx, by) = outline[k], outline[(k + 1) % len(outline)]
+        dx, dy = bx - ax, by - ay
+        t = max(0.0, min(1.0, ((px - ax) * dx + (py - ay) * dy) / (dx * dx + dy * dy)))
+        qx, qy = ax + t * dx, ay + t * dy
+        d = math.hypot(px - qx, py - qy)
+        if best is None or d < best[0]:
+            best = (d, qx, qy)
+    _, qx, qy = best
+    cx, cy = np.mean([p[0] for p in outline]), np.mean([p[1] for p in outline])
+    norm = math.hypot(cx - qx, cy - qy) or 1.0
+    return qx + 1e-3 * (cx - qx) / norm, qy + 1e-3 * (cy - qy) / norm
+
+
+def _evaluate_surface(site, surface, limits: SiteLimits, offsets, grid_m, progress, done_total):
+    x, y, inside = surface_cells(surface.outline, grid_m)
+    cell_index = np.flatnonzero(inside.ravel())
+    gx, gy = np.meshgrid(x, y)
+    acc = _SurfaceAccumulator.new(len(site.antennas))
+    cells = _evaluate_columns(site, surface, limits, offsets, gx.ravel()[cell_index], gy.ravel()[cell_index],
+                              acc, progress, done_total)
+    maps = {tier: np.full(inside.size, np.nan) for tier in TIERS}
+    for tier in TIERS:
+        maps[tier][cell_index] = cells.ratio[tier]
     grid = SurfaceGrid(x_m=x, y_m=y, ratio={t: m.reshape(inside.shape) for t, m in maps.items()}, cell_m=grid_m)
-    return grid, argmax_z, acc
+    spots_xy = hot_spots(surface, site.antennas, site.record.site.body_height_m)
+    spots = _evaluate_columns(site, surface, limits, offsets, *spots_xy, acc)
+    return grid, cells, spots, acc
 
 
 def _update_headroom(headroom, ratio, total, reduced, evaluation) -> None:
@@ -251,7 +325,7 @@ def _exceedance_polygons(grid: SurfaceGrid, tier: str) -> list[list[tuple[float,
     return rings
 
 
-def _surface_result(site, surface, grid, argmax_z, acc) -> SurfaceResult:
+def _surface_result(site, surface, grid, cells: _Columns, spots: _Columns, acc) -> SurfaceResult:
     governing = ACCESS_TIER.get(surface.access)
     cell_area = (grid.x_m[1] - grid.x_m[0] if len(grid.x_m) > 1 else site.record.site.grid_m) * (
         grid.y_m[1] - grid.y_m[0] if len(grid.y_m) > 1 else site.record.site.grid_m
@@ -259,12 +333,15 @@ def _surface_result(site, surface, grid, argmax_z, acc) -> SurfaceResult:
     ids = [a.id for a in site.antennas]
     max_ratio, max_at, area_above, regions, responsible = {}, {}, {}, {}, {}
     for tier in TIERS:
-        values = grid.ratio[tier]
-        flat = int(np.nanargmax(values))
-        iy, ix = np.unravel_index(flat, values.shape)
-        max_ratio[tier] = float(values[iy, ix])
-        max_at[tier] = (float(grid.x_m[ix]), float(grid.y_m[iy]), float(argmax_z[tier][flat]))
-        area_above[tier] = float(np.sum(values > 1.0) * cell_area)
+        # The maximum over the grid cells and the hot spots next to the antennas.
+        best = max(
+            ((c.ratio[tier][k], c.x[k], c.y[k], c.at_z[tier][k])
+             for c in (cells, spots) if len(c.x) for k in [int(np.argmax(c.ratio[tier]))]),
+            key=lambda item: item[0],
+        )
+        max_ratio[tier] = float(best[0])
+        max_at[tier] = (round(float(best[1]), 3), round(float(best[2]), 3), round(float(best[3]), 3))
+        area_above[tier] = float(np.sum(grid.ratio[tier] > 1.0) * cell_area)
         regions[tier] = _exceedance_polygons(grid, tier)
         responsible[tier] = [ids[i] for i in np.flatnonzero(acc.exceed_share[tier] >= RESPONSIBILITY_SHARE)]
     compliant = None if governing is None else bool(max_ratio[governing] <= 1.0)
@@ -505,8 +582,8 @@ def assess(
     done_total = [0, total_points]
     surfaces = []
     for surface in site.record.surfaces:
-        grid, argmax_z, acc = _evaluate_surface(site, surface, limits, offsets, grid_m, progress, done_total)
-        surfaces.append((_surface_result(site, surface, grid, argmax_z, acc), acc))
+        grid, cells, spots, acc = _evaluate_surface(site, surface, limits, offsets, grid_m, progress, done_total)
+        surfaces.append((_surface_result(site, surface, grid, cells, spots, acc), acc))
 
     public_headroom = np.full(len(site.antennas), np.inf)
     for result, acc in surfaces:
@@ -663,8 +740,10 @@ def _assumptions(site, grid_m, offsets, factor) -> list[Assumption]:
         Assumption("Heights", f"People are evaluated from each surface up to {info.body_height_m:g} m, sampled at "
                    f"{len(offsets)} heights; the {'peak over' if info.evaluation == 'peak' else 'spatial average over'} "
                    "that height is compared with the limit."),
-        Assumption("Grid", f"Surface maps at {grid_m:g} m cell spacing (cell centres); peaks between cells can be "
-                   "missed by up to the local gradient over half a cell."),
+        Assumption("Grid", f"Surface maps at {grid_m:g} m cell spacing (cell centres). Maxima also include hot "
+                   f"spots: points along each antenna's boresight from {HOT_SPOT_FROM_M:g} m (its front face) to 20 m "
+                   "and below antennas people can stand under, so a narrow zone is not lost between cells; areas "
+                   "and boundary polygons come from the grid."),
         Assumption("Summation", "Total exposure ratio = Σ S_i / S_L,i over all emitters and frequencies, per tier; "
                    "compliant where ≤ 1."),
         Assumption("Left out", "Obstructions, parapets and people's bodies are not modelled (conservative: they "

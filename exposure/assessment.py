@@ -654,6 +654,10 @@ def assess(
     )
 
 
+def _area_text(area_m2: float) -> str:
+    return f"{area_m2:.1f} m²" if area_m2 > 0 else "a zone smaller than one grid cell (found at a hot spot)"
+
+
 def _pct(ratio: float) -> str:
     return f"{100 * ratio:.0f} %" if ratio >= 0.1 else f"{100 * ratio:.2g} %"
 
@@ -678,7 +682,7 @@ def _flags(site, surfaces, work, emitters, limits, measure_above) -> list[Flag]:
             flags.append(Flag(
                 f"{'public' if tier == 'general_public' else 'occupational'}-exceedance", "mitigate",
                 f"{s.name} ({s.access}) reaches {_pct(ratio)} of the {label[tier]} limit at "
-                f"({s.max_at_m[tier][0]:.1f}, {s.max_at_m[tier][1]:.1f}) m; {s.area_above_m2[tier]:.1f} m² "
+                f"({s.max_at_m[tier][0]:.1f}, {s.max_at_m[tier][1]:.1f}) m; {_area_text(s.area_above_m2[tier])} "
                 f"exceed it. Restrict access or reduce power. Shared responsibility (≥ 5 % of own limit): "
                 f"{', '.join(who) or 'none'} ({', '.join(ops) or '-'}).",
                 emitters=tuple(who), surface=s.name,
@@ -694,7 +698,7 @@ def _flags(site, surfaces, work, emitters, limits, measure_above) -> list[Flag]:
             who = s.responsible["general_public"]
             flags.append(Flag(
                 "access-control", "info",
-                f"{s.name}: {s.area_above_m2['general_public']:.1f} m² exceed the general-public limit "
+                f"{s.name}: {_area_text(s.area_above_m2['general_public'])} exceed the general-public limit "
                 f"(up to {_pct(s.max_ratio['general_public'])}); only trained workers may enter: access control "
                 "and signs at the boundary are needed.",
                 emitters=tuple(who), surface=s.name,

@@ -14,6 +14,8 @@ import math
 
 import numpy as np
 import pytest
+from hypothesis import HealthCheck, given, settings
+from hypothesis import strategies as st
 from typer.testing import CliRunner
 
 from exposure.assessment import assess, body_offsets, probe, reduce_over_height
@@ -362,3 +364,24 @@ def test_hot_spots_catch_a_zone_the_grid_misses(load):
     coarse = assess(load(site_dict(emitters, grid_m=2.0))).surface("Terrace").max_ratio["general_public"]
     fine = assess(load(site_dict(emitters, grid_m=0.25))).surface("Terrace").max_ratio["general_public"]
     assert coarse == pytest.approx(fine, rel=0.1)
+
+
+@settings(max_examples=15, deadline=None, suppress_health_check=[HealthCheck.function_scoped_fixture])
+@given(
+    x=st.floats(-12, 12), y=st.floats(-5, 35), z=st.floats(0.0, 6.0),
+    azimuth=st.floats(0, 360), tilt=st.floats(-10, 30), kind=st.sampled_from(["panel", "array", "omni"]),
+)
+def test_random_sites_give_finite_results(load, x, y, z, azimuth, tilt, kind):
+    """Whatever the placement and orientation (antenna on, above or beside the surface),
+    every map value, maximum and boundary is finite and non-negative (no division by zero)."""
+    e = panel(kind=kind, x_m=x, y_m=y, z_m=z, azimuth_deg=azimuth, mech_tilt_deg=tilt)
+    if kind == "omni":
+        for key in ("azimuth_deg", "h_beamwidth_deg", "front_to_back_db"):
+            e.pop(key)
+    result = assess(load(site_dict([e], grid_m=2.0)))
+    grid = result.surfaces[0].grid.ratio["general_public"]
+    assert np.all(np.isfinite(grid[~np.isnan(grid)])) and np.nanmin(grid) >= 0
+    for tier in ("general_public", "occupational"):
+        assert math.isfinite(result.surfaces[0].max_ratio[tier])
+        assert all(math.isfinite(v) and v >= 0 for v in result.emitters[0].boundary_m[tier].values())
+    assert result.verdict in ("compliant", "verify-by-measurement", "mitigation-required")

@@ -241,7 +241,7 @@ class LimitTable:
     key, title, source, edition, table : str
         Identification of the table (see :meth:`citation`).
     status : {"confirmed", "from memory", "partly from memory"}
-        How sure the transcription is; ``status_note`` says which parts are from memory.
+        How sure the values copied from the source are; ``status_note`` says which parts are from memory.
     path : Path
         The file the table was read from.
     f_min_mhz, f_max_mhz : float

@@ -300,29 +300,28 @@ class SectorPattern(Pattern):
         self._h_half = math.radians(self.h_scan_deg) / 2.0
         self._v_half = math.radians(self.v_scan_deg) / 2.0
 
+    @staticmethod
+    def _quadratic_attenuation(angle, half_scan: float, k: float, cap: float) -> np.ndarray:
+        """``min(k·max(|angle| − half_scan, 0)², cap)`` in place [Np]: the 3GPP cut, flat
+        inside a scan range (angle and half_scan in rad)."""
+        if half_scan > 0.0:
+            np.abs(angle, out=angle)
+            angle -= half_scan
+            np.maximum(angle, 0.0, out=angle)
+        np.square(angle, out=angle)
+        angle *= k
+        np.minimum(angle, cap, out=angle)
+        return angle
+
     def azimuth_part(self, forward, right) -> np.ndarray:
         """Horizontal attenuation :math:`A_H` [Np] (not yet capped by the total)."""
-        a = np.arctan2(right, forward)
-        if self._h_half > 0.0:
-            np.abs(a, out=a)
-            a -= self._h_half
-            np.maximum(a, 0.0, out=a)
-        np.square(a, out=a)
-        a *= self._kh
-        np.minimum(a, self._cap, out=a)
-        return a
+        return self._quadratic_attenuation(np.arctan2(right, forward), self._h_half, self._kh, self._cap)
 
     def gain_at(self, part, up, horizontal) -> np.ndarray:
         # elevation *above* the boresight plane: (theta_below - tilt) = -(above + tilt)
         t = _elevation_above(up, horizontal)
         t += self._tilt
-        if self._v_half > 0.0:
-            np.abs(t, out=t)
-            t -= self._v_half
-            np.maximum(t, 0.0, out=t)
-        np.square(t, out=t)
-        t *= self._kv
-        np.minimum(t, self._sla, out=t)
+        t = self._quadratic_attenuation(t, self._v_half, self._kv, self._sla)
         t += part
         np.minimum(t, self._cap, out=t)
         np.negative(t, out=t)

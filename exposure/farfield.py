@@ -72,7 +72,7 @@ def spherical_kernel(pattern: Pattern, eirp_w: float, forward, right, up, r_min:
     horizontal2 = forward * forward
     horizontal2 += right * right
     horizontal = np.sqrt(horizontal2)
-    g = pattern.gain_at(pattern.azimuth_part(forward, right), up, horizontal)
+    g = pattern.gain_at(pattern.azimuth_part(forward, right, up), up, horizontal)
     r2 = horizontal2  # reuse: r^2 = horizontal^2 + up^2
     np.multiply(up, up, out=horizontal)
     r2 += horizontal

@@ -90,8 +90,13 @@ class Pattern:
     h_beamwidth_deg: float = 360.0
     v_beamwidth_deg: float = 180.0
 
-    def azimuth_part(self, forward, right) -> Any:
-        """What depends only on the direction seen from above, per point."""
+    def azimuth_part(self, forward, right, up=None, half_length: float = 0.0) -> Any:
+        """What depends only on the direction seen from above, per point.
+
+        ``up`` and ``half_length`` (the aperture's half length [m]) let a pattern fade its
+        horizontal attenuation towards the zenith and nadir, where azimuth loses its meaning
+        (:class:`SectorPattern`); patterns that need no such fade ignore them.
+        """
         raise NotImplementedError
 
     def gain_at(self, part, up, horizontal) -> np.ndarray:
@@ -126,7 +131,7 @@ class Pattern:
         shape = forward.shape
         forward, right, up = (np.ravel(a) for a in (forward, right, up))  # kernels work in place on 1-d arrays
         horizontal = np.hypot(forward, right) if horizontal is None else np.ravel(np.broadcast_to(horizontal, shape))
-        return self.gain_at(self.azimuth_part(forward, right), up, horizontal).reshape(shape)
+        return self.gain_at(self.azimuth_part(forward, right, up), up, horizontal).reshape(shape)
 
     def gain(self, azimuth_deg, elevation_deg) -> np.ndarray:
         """Relative gain at azimuth off boresight and elevation below boresight [deg]."""
@@ -138,7 +143,7 @@ class Pattern:
         ce = np.cos(el)
         forward, right, up = ce * np.cos(az), ce * np.sin(az), -np.sin(el)
         # horizontal = cos(el) exactly, as the elevation gives it
-        return self.gain_at(self.azimuth_part(forward, right), up, ce).reshape(shape)
+        return self.gain_at(self.azimuth_part(forward, right, up), up, ce).reshape(shape)
 
     def attenuation_db(self, azimuth_deg, elevation_deg) -> np.ndarray:
         """Attenuation below the peak [dB] at the given angles."""
@@ -214,6 +219,33 @@ def _vertical_primitive(x, sqrt_k: float, knee, floor, half_scan: float) -> np.n
 # Parametric sector (and the envelope of a beam-steering array)
 
 
+ZENITH_FADE_FROM_DEG = 45.0
+"""Elevation beyond which the horizontal attenuation fades out (see :func:`zenith_fade`)."""
+
+
+def zenith_fade(forward, right, up, half_length: float = 0.0) -> np.ndarray:
+    r"""Weight of the horizontal attenuation towards the zenith and nadir.
+
+    With :math:`\epsilon` the elevation of a point seen from the nearest point of the
+    aperture axis (half length ``half_length`` [m]),
+
+    .. math:: w = \min\left(1,\ \frac{\cos^2\epsilon}{\cos^2 45^\circ}\right),\qquad
+              \cos^2\epsilon = \frac{h^2}{h^2 + \max(|u| - L/2,\ 0)^2}
+
+    exactly 1 within 45° of the horizontal (the 3GPP form is untouched there), falling
+    smoothly to 0 straight above or below the antenna; 1 on the axis inside the aperture.
+    """
+    h2 = np.square(forward)
+    h2 += np.square(right)
+    v = np.abs(up) - half_length
+    np.maximum(v, 0.0, out=v)
+    np.square(v, out=v)
+    v += h2
+    w = np.divide(h2, v, out=np.ones_like(h2), where=v > 0.0)
+    w /= math.cos(math.radians(ZENITH_FADE_FROM_DEG)) ** 2
+    return np.minimum(w, 1.0, out=w)
+
+
 class SectorPattern(Pattern):
     r"""Parametric sector pattern of 3GPP TR 36.814 / TR 38.901, optionally scanned.
 
@@ -245,6 +277,13 @@ class SectorPattern(Pattern):
     :math:`A_m` makes the back half a flat floor at the front-to-back ratio, so the back
     lobe is counted once. The vertical angle is the elevation below the mechanical
     boresight plane at every azimuth (3GPP's zenith angle less 90°).
+
+    Towards the zenith and nadir the 3GPP form jumps from front to back by
+    :math:`A_m - SLA_V`, since azimuth loses its meaning there. Here :math:`A_H` is
+    multiplied by :func:`zenith_fade`, which is 1 within 45° of the horizontal and falls
+    to 0 at the zenith and nadir, so the pattern is continuous through them. This is this
+    project's choice; it only lowers attenuation (conservative), and leaves the main beam,
+    the half-power angles and the front-to-back ratio as 3GPP gives them.
 
     Beam-steering envelope (``h_scan_deg``, ``v_scan_deg`` > 0): the peak of a beam
     steered anywhere inside the scan ranges, centred on boresight horizontally and on the
@@ -313,9 +352,13 @@ class SectorPattern(Pattern):
         np.minimum(angle, cap, out=angle)
         return angle
 
-    def azimuth_part(self, forward, right) -> np.ndarray:
-        """Horizontal attenuation :math:`A_H` [Np] (not yet capped by the total)."""
-        return self._quadratic_attenuation(np.arctan2(right, forward), self._h_half, self._kh, self._cap)
+    def azimuth_part(self, forward, right, up=None, half_length: float = 0.0) -> np.ndarray:
+        """Horizontal attenuation :math:`A_H` [Np] (not yet capped by the total), faded by
+        :func:`zenith_fade` where ``up`` is given."""
+        a = self._quadratic_attenuation(np.arctan2(right, forward), self._h_half, self._kh, self._cap)
+        if up is not None:
+            a *= zenith_fade(forward, right, up, half_length)
+        return a
 
     def gain_at(self, part, up, horizontal) -> np.ndarray:
         # elevation *above* the boresight plane: (theta_below - tilt) = -(above + tilt)
@@ -396,7 +439,7 @@ class OmniPattern(Pattern):
         self._sla = self.sidelobe_floor_db * NEPER_PER_DB
         self._tilt = math.radians(self.elec_tilt_deg)
 
-    def azimuth_part(self, forward, right) -> None:
+    def azimuth_part(self, forward, right, up=None, half_length: float = 0.0) -> None:
         return None
 
     def gain_at(self, part, up, horizontal) -> np.ndarray:
@@ -623,7 +666,7 @@ class TabulatedPattern(Pattern):
             return np.interp(angle_deg, self._v_a, self._v_v, period=360.0)
         return np.interp(angle_deg, self._v_a, self._v_v)
 
-    def azimuth_part(self, forward, right) -> tuple[np.ndarray, np.ndarray]:
+    def azimuth_part(self, forward, right, up=None, half_length: float = 0.0) -> tuple[np.ndarray, np.ndarray]:
         phi = np.degrees(np.arctan2(right, forward))
         return self._interp_h(phi), np.abs(phi) / 180.0
 
@@ -827,7 +870,7 @@ class DishPattern(Pattern):
         f699_gain_dbi(0.0, self.diameter_over_wavelength, self.max_gain_dbi)  # validates
         self.h_beamwidth_deg = self.v_beamwidth_deg = 2.0 * math.sqrt(3.0 / 2.5e-3) / self.diameter_over_wavelength
 
-    def azimuth_part(self, forward, right):
+    def azimuth_part(self, forward, right, up=None, half_length: float = 0.0):
         return forward, right
 
     def gain_at(self, part, up, horizontal) -> np.ndarray:

@@ -183,7 +183,7 @@ def synthetic_kernel(
     distance2 = up * up
     distance2 += horizontal2
     weight = far_field_weight(np.sqrt(distance2), length_m, wavelength_m)
-    part = pattern.azimuth_part(forward, right)
+    part = pattern.azimuth_part(forward, right, up, 0.5 * length_m)
     np.maximum(distance2, r_min * r_min, out=distance2)
 
     near = weight > 0.0

@@ -100,17 +100,21 @@ def _render(site, summary: dict) -> None:
     with_patterns = "pattern_efficiency" in summary["emitters"][0]
     if with_patterns:
         columns.append("∫G/4π")
-    columns.append("operator")
     for col in columns:
-        table.add_column(col, justify="left" if col in ("id", "kind", "operator") else "right")
-    for e, s in zip(record.emitters, summary["emitters"]):
-        row = [
-            esc(e.id), e.kind, fmt(e.frequency_mhz, 5), fmt(e.net_power_w), f"{e.peak_gain_dbi:.1f}",
-            fmt(e.eirp_full_w), fmt(e.erp_full_w), f"{e.duty_factor:g}",
-        ]
-        if with_patterns:
-            row.append(f"{s['pattern_efficiency']:.2f}")
-        table.add_row(*row, esc(e.operator))
+        table.add_column(col, justify="left" if col in ("id", "kind") else "right")
+    operators = list(dict.fromkeys(e.operator for e in record.emitters))
+    for operator in operators:
+        table.add_row(f"[bold]{esc(operator)}[/bold]", *[""] * (len(columns) - 1))
+        for e, s in zip(record.emitters, summary["emitters"]):
+            if e.operator != operator:
+                continue
+            row = [
+                f"  {esc(e.id)}", e.kind, fmt(e.frequency_mhz, 5), fmt(e.net_power_w), f"{e.peak_gain_dbi:.1f}",
+                fmt(e.eirp_full_w), fmt(e.erp_full_w), f"{e.duty_factor:g}",
+            ]
+            if with_patterns:
+                row.append(f"{s['pattern_efficiency']:.2f}")
+            table.add_row(*row)
     out.print(table)
     if with_patterns:
         out.print("∫G/4π: the pattern's gain integrated over the sphere; above 1 for envelopes (arrays over "

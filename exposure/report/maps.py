@@ -267,7 +267,7 @@ def _emitter_labels(assessment, labels: _Labels, base: float, region=None) -> li
                 tip = (x + factor * base * sx, y + factor * base * sy)
                 gap = 0.12 * base
                 options.append(((tip[0] + gap * sx, tip[1] + gap * sy), ha, va, tip))
-        for at, ha, va, tip in options:
+        for at, ha, va, _tip in options:
             box = _box_at(*at, width, height, ha, va)
             if labels.free(box):
                 break
@@ -475,7 +475,7 @@ def _plan_map(assessment, width_in: float, max_height_in: float, region, legend:
                         linespacing=1.1, bbox=box_style,
                         arrowprops={"arrowstyle": "-", "color": "#404040", "linewidth": 0.6, "shrinkA": 0,
                                     "shrinkB": 0})
-    for e, tip, box, ha, va, at in emitter_labels:
+    for e, tip, _box, ha, va, at in emitter_labels:
         x, y = e.position_m[0], e.position_m[1]
         if tip is not None:
             for colour, width, head in (("white", 2.6, "0.28,head_length=0.55"), ("black", 1.0, "0.2,head_length=0.45")):
@@ -487,7 +487,7 @@ def _plan_map(assessment, width_in: float, max_height_in: float, region, legend:
                 markeredgewidth=0.9 if tip is not None else 1.6, zorder=97)
         ax.text(*at, e.id, ha=ha, va=va, fontsize=6.5, fontweight="bold", zorder=98,
                 bbox={"boxstyle": "round,pad=0.15", "facecolor": "white", "edgecolor": "none", "alpha": 0.88})
-    for name, w, box, ha, va, at in work_labels:
+    for name, w, _box, ha, va, at in work_labels:
         ax.plot([w.point_m[0]], [w.point_m[1]], marker="s", markersize=5, color="#ffe680", markeredgecolor="black",
                 markeredgewidth=1.0, zorder=97)
         ax.text(*at, name, fontsize=6.5, zorder=98, ha=ha, va=va,

@@ -276,8 +276,8 @@ def _map_page(b: _Builder, a) -> None:
         f"the general-public limit; red line: 100 % of the occupational limit. "
         + (f"Surfaces at different elevations share the map (higher ones drawn on top): {surfaces}. "
            if len({s.elevation_m for s in a.surfaces}) > 1 else f"Surfaces: {surfaces}. ")
-        + f"Emitter positions are centres of radiation; work "
-        f"positions W1… are listed in the work-position table. Site frame: x east, y north, metres.", "caption"))
+        + "Emitter positions are centres of radiation; work "
+        "positions W1… are listed in the work-position table. Site frame: x east, y north, metres.", "caption"))
     lines = []
     for tier, colour in (("general_public", "black"), ("occupational", "red")):
         names = ", ".join(esc(n) for n in drawn[tier])
@@ -554,7 +554,7 @@ def _method(b: _Builder, a) -> None:
     b.heading("Method and assumptions")
     settings = a.settings
     items = [
-        f"<b>Models</b>: "
+        "<b>Models</b>: "
         + "; ".join(f"{esc(text.MODEL_NAMES.get(m, m))} for {esc(', '.join(e.id for e in a.emitters if e.model == m))}"
                     for m in sorted({e.model for e in a.emitters}))
         + ". Each emitter's power density is evaluated from its own model and the totals are the sum of the "

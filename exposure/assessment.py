@@ -169,13 +169,12 @@ def surface_cells(outline: Sequence[Sequence[float]], grid_m: float) -> tuple[np
 class _SurfaceAccumulator:
     """Running results over the chunks of one surface."""
 
-    n_emitters: int
     exceed_share: dict[str, np.ndarray]  # tier -> max share of each emitter where T > 1
     headroom: np.ndarray  # per emitter: power scale keeping this surface's governing T <= 1
 
     @classmethod
     def new(cls, n: int) -> _SurfaceAccumulator:
-        return cls(n, {t: np.zeros(n) for t in TIERS}, np.full(n, np.inf))
+        return cls({t: np.zeros(n) for t in TIERS}, np.full(n, np.inf))
 
 
 @dataclass(frozen=True)
@@ -396,7 +395,7 @@ def ray_extent(antenna: Antenna, direction: np.ndarray, limit_w_m2: float, refle
         s = power_density(antenna, origin + r[:, None] * direction, reflection=reflection)
         above = np.flatnonzero(s >= limit_w_m2)
         if above.size == 0:
-            return 0.0 if r[0] <= 1e-3 else float(r[0])
+            return 0.0  # only on the first pass: a refinement grid starts at a crossing
         k = above[-1]
         if k == len(r) - 1:
             return float(r[-1])

@@ -16,8 +16,12 @@ import numpy as np
 
 from exposure.units import ERP_TO_EIRP, db_to_linear, wavelength_m
 
-EmitterKind = Literal["panel", "omni", "dish", "array"]
-EMITTER_KINDS: tuple[str, ...] = ("panel", "omni", "dish", "array")
+EmitterKind = Literal["panel", "omni", "dish", "array", "directional"]
+EMITTER_KINDS: tuple[str, ...] = ("panel", "omni", "dish", "array", "directional")
+
+DEFAULT_SIDELOBE_FLOOR_DB = 13.0
+"""Side-lobe floor where a record gives none [dB]: a uniform array's first side lobe is
+-13.26 dB (textbook array theory; REFERENCES.md § 9), so a deeper default would hide it."""
 
 
 @dataclass(frozen=True)
@@ -45,7 +49,7 @@ class Antenna:
     ----------
     id : str
         The emitter's id in the site record.
-    kind : {"panel", "omni", "dish", "array"}
+    kind : {"panel", "omni", "dish", "array", "directional"}
     frequency_mhz : float
         Carrier frequency [MHz].
     net_power_w : float
@@ -62,9 +66,11 @@ class Antenna:
     front_to_back_db : float
         Front-to-back ratio [dB].
     sidelobe_floor_db : float
-        Attenuation floor of the vertical pattern outside the main beam [dB].
+        Attenuation floor of the vertical pattern outside the main beam [dB]: the highest
+        side lobe of the vertical pattern below the peak.
     length_m : float or None
-        Radiating aperture length of panels, omnis and arrays [m].
+        Radiating aperture length of panels, omnis and arrays (along the aperture axis), or
+        the length along boresight of a directional antenna [m].
     diameter_m : float or None
         Reflector diameter of dishes [m].
     aperture_efficiency : float
@@ -89,7 +95,7 @@ class Antenna:
     h_beamwidth_deg: float | None = None
     v_beamwidth_deg: float | None = None
     front_to_back_db: float = 25.0
-    sidelobe_floor_db: float = 20.0
+    sidelobe_floor_db: float = DEFAULT_SIDELOBE_FLOOR_DB
     length_m: float | None = None
     diameter_m: float | None = None
     aperture_efficiency: float = 0.55

@@ -56,9 +56,13 @@ __all__ = [
     "beam_direction",
     "power_density_along_beam",
     "boresight_distance_to_limit",
+    "ELEMENT_ZONE_WAVELENGTHS",
+    "element_zone_distance_m",
+    "element_zone",
+    "induction_margin",
 ]
 
-Model = Literal["auto", "spherical", "cylindrical", "synthetic", "aperture"]
+Model = Literal["auto", "spherical", "cylindrical", "synthetic", "aperture", "endfire"]
 MODELS: tuple[str, ...] = get_args(Model)
 
 Reflection = Literal["none", "typical", "full"]
@@ -123,6 +127,15 @@ def _check_antenna(antenna: Antenna) -> None:
         raise InputError(problems)
 
 
+EVALUATIONS: tuple[str, ...] = ("peak", "spatial-average")
+
+
+def _is_spatial_peak(evaluation: str) -> bool:
+    if evaluation not in EVALUATIONS:
+        raise UnknownKeyError(f"unknown evaluation {evaluation!r}; choose one of: {', '.join(EVALUATIONS)}")
+    return evaluation == "peak"
+
+
 def model_for(antenna: Antenna, model: str = "auto") -> str:
     """The model that :func:`power_density` uses for *antenna* when asked for *model*.
 
@@ -144,10 +157,17 @@ def model_for(antenna: Antenna, model: str = "auto") -> str:
     if model == "auto":
         if antenna.kind == "dish":
             return "aperture" if antenna.diameter_m else "spherical"
+        if antenna.kind == "directional":
+            return "endfire" if antenna.length_m else "spherical"
         return "synthetic" if antenna.length_m else "spherical"
+    if model == "endfire":
+        if antenna.kind != "directional":
+            raise InputError(f"{where}: the endfire model is for directional antennas (Yagi, log-periodic, horn, patch), not a {antenna.kind}")
+        if not antenna.length_m:
+            raise InputError(f"{where}: the endfire model needs length_m (the antenna's length along boresight)")
     if model in ("cylindrical", "synthetic"):
-        if antenna.kind == "dish":
-            raise InputError(f"{where}: the {model} model is for panels, omnis and arrays, not dishes; use aperture or spherical")
+        if antenna.kind in ("dish", "directional"):
+            raise InputError(f"{where}: the {model} model is for panels, omnis and arrays, not a {antenna.kind}; use {'aperture' if antenna.kind == 'dish' else 'endfire'} or spherical")
         if not antenna.length_m:
             raise InputError(f"{where}: the {model} model needs length_m (the radiating aperture length)")
     if model == "aperture" and not antenna.diameter_m:
@@ -155,7 +175,7 @@ def model_for(antenna: Antenna, model: str = "auto") -> str:
     return model
 
 
-def _kernel(antenna: Antenna, model: str, auto: bool, pattern: Pattern):
+def _kernel(antenna: Antenna, model: str, auto: bool, pattern: Pattern, spatial_peak: bool = True):
     """A function of antenna-frame coordinates (f, r, u) giving W/m² without reflection."""
     r_min = minimum_distance_m(antenna)
     eirp = antenna.eirp_w
@@ -169,9 +189,13 @@ def _kernel(antenna: Antenna, model: str, auto: bool, pattern: Pattern):
         )
     if model == "synthetic":
         lam = antenna.wavelength_m
+        peak = auto and spatial_peak
+        length = synthetic.effective_length_m(antenna.length_m, lam, pattern.v_beamwidth_deg) if auto else antenna.length_m
         return lambda f, r, u: synthetic.synthetic_kernel(
-            pattern, eirp, antenna.length_m, lam, f, r, u, r_min, cap_spherical=auto
+            pattern, eirp, length, lam, f, r, u, r_min, cap_spherical=auto, spatial_peak=peak
         )
+    if model == "endfire":
+        return lambda f, r, u: farfield.endfire_kernel(pattern, eirp, antenna.length_m, f, r, u, r_min)
     if model == "aperture":
         return lambda f, r, u: aperture.aperture_kernel(
             pattern,
@@ -194,6 +218,7 @@ def power_density(
     *,
     model: str = "auto",
     reflection: str | float = "none",
+    evaluation: str = "peak",
 ) -> np.ndarray:
     """Time-averaged power density of *antenna* at each point.
 
@@ -207,6 +232,10 @@ def power_density(
         See the module docstring and :func:`model_for`.
     reflection : {"none", "typical", "full"} or float
         Ground-reflection factor on power density (:func:`reflection_factor`).
+    evaluation : {"peak", "spatial-average"}
+        What the value stands for: ``peak`` (a spatial peak; ``auto`` adds the coherent
+        margin of :func:`exposure.synthetic.coherent_margin` to its near-field term) or
+        ``spatial-average`` (to be averaged over a body's height: the power sum alone).
 
     Returns
     -------
@@ -221,6 +250,7 @@ def power_density(
     """
     resolved = model_for(antenna, model)
     factor = reflection_factor(reflection)
+    spatial_peak = _is_spatial_peak(evaluation)
     _check_antenna(antenna)
     pts = np.asarray(points, dtype=float)
     if pts.ndim == 0 or pts.shape[-1] != 3:
@@ -233,12 +263,15 @@ def power_density(
     origin, axes = antenna_frame(antenna)
     offset = (axes @ origin)[:, None]
     pattern = pattern_for(antenna)
-    kernel = _kernel(antenna, resolved, model == "auto", pattern)
+    kernel = _kernel(antenna, resolved, model == "auto", pattern, spatial_peak)
+    induction = model == "auto" and antenna.kind != "dish"
     for start in range(0, flat.shape[0], CHUNK_POINTS):
         stop = min(start + CHUNK_POINTS, flat.shape[0])
         local = axes @ flat[start:stop].T  # rows forward, right, up: contiguous
         local -= offset
         s = kernel(local[0], local[1], local[2])
+        if induction:
+            s *= induction_margin(antenna, local)
         if factor != 1.0:
             s *= factor
         out[start:stop] = s
@@ -258,11 +291,13 @@ def beam_direction(antenna: Antenna) -> np.ndarray:
     return to_site_direction(local, axes)
 
 
-def power_density_along_beam(antenna: Antenna, distances_m, *, model: str = "auto", reflection: str | float = "none"):
+def power_density_along_beam(
+    antenna: Antenna, distances_m, *, model: str = "auto", reflection: str | float = "none", evaluation: str = "peak"
+):
     """Power density at distances along the main beam from the centre of radiation [W/m²]."""
     d = np.asarray(distances_m, dtype=float)
     points = np.asarray(antenna.position_m, dtype=float) + d[..., None] * beam_direction(antenna)
-    return power_density(antenna, points, model=model, reflection=reflection)
+    return power_density(antenna, points, model=model, reflection=reflection, evaluation=evaluation)
 
 
 _SCAN_SAMPLES = 400
@@ -274,6 +309,7 @@ def boresight_distance_to_limit(
     *,
     model: str = "auto",
     reflection: str | float = "none",
+    evaluation: str = "peak",
 ) -> float:
     r"""Distance along the main beam beyond which the prediction stays below a limit [m].
 
@@ -283,7 +319,7 @@ def boresight_distance_to_limit(
         The emitter.
     limit_w_m2 : float
         Power-density limit [W/m²], > 0.
-    model, reflection
+    model, reflection, evaluation
         As for :func:`power_density`.
 
     Returns
@@ -307,12 +343,13 @@ def boresight_distance_to_limit(
         raise InputError(f"limit {limit_w_m2!r} W/m2 must be > 0")
     factor = reflection_factor(reflection)
     model_for(antenna, model)
+    _is_spatial_peak(evaluation)
     _check_antenna(antenna)
     if antenna.net_power_w == 0.0:
         return 0.0
 
     def along(d):
-        return power_density_along_beam(antenna, d, model=model, reflection=reflection)
+        return power_density_along_beam(antenna, d, model=model, reflection=reflection, evaluation=evaluation)
 
     r_lo = minimum_distance_m(antenna)
     r_hi = max(math.sqrt(factor * antenna.eirp_w / (4.0 * math.pi * limit)) * 1.01, 2.0 * r_lo)
@@ -336,3 +373,105 @@ def boresight_distance_to_limit(
         else:
             hi = mid
     return hi
+
+
+ELEMENT_ZONE_WAVELENGTHS = 1.0
+"""Reach of the element zone from the radiating structure, in wavelengths."""
+
+
+def element_zone_distance_m(antenna: Antenna) -> float:
+    r"""Reach of the element zone around an antenna's radiating structure [m].
+
+    .. math:: d_{ez} = \max(\lambda,\ \lambda/2\pi) = \lambda
+
+    Within about a wavelength of the elements the induction (reactive) fields add to the
+    radiating field, and a full-wave solver finds E and H up to 6 dB above any
+    radiating-field model there (REFERENCES.md § 9); the reactive near field proper ends at
+    λ/2π (FCC OET Bulletin 65, 1997; from memory). Inside this zone a power density does
+    not describe exposure: E and H (and contact currents) are measured instead.
+    """
+    return ELEMENT_ZONE_WAVELENGTHS * antenna.wavelength_m
+
+
+def induction_margin(antenna: Antenna, local: np.ndarray) -> np.ndarray:
+    r"""Margin for the induction field near the radiating elements [linear, ≥ 1].
+
+    Parameters
+    ----------
+    antenna : Antenna
+        The emitter.
+    local : numpy.ndarray, shape (3, n)
+        Antenna-frame coordinates (rows forward, right, up) [m].
+
+    Returns
+    -------
+    numpy.ndarray
+        :math:`1 + (2/kd)^2`, with :math:`k = 2\pi/\lambda` and :math:`d` the distance from
+        the radiating structure (:func:`element_zone`), clamped to :func:`minimum_distance_m`.
+
+    Notes
+    -----
+    A current element's radial (induction) field stands to its radiating field as
+    :math:`2\cot\theta/(kr)` in amplitude for :math:`kr \gg 1` (the Hertzian dipole's
+    fields; C. A. Balanis, *Antenna Theory*, 3rd ed., 2005, eqs. 4-10a–c; from memory), so
+    the plane-wave equivalent of :math:`|E|^2` exceeds the radiating field's by
+    :math:`(2\cot\theta/kr)^2`; the margin takes :math:`\cot\theta = 1` (45° off the
+    element's axis) and the distance from the nearest element. At the edge of the element
+    zone (:math:`d = \lambda`) it adds +0.4 dB, at :math:`3\lambda` +0.05 dB. Against the
+    full-wave half-wave dipole (nec2++) the radiating-field model is 0.7 dB low at 1.0–1.1 λ
+    from the wire, 55° above its broadside; with the margin it is at or above the solver
+    there (``tests/fullwave``). Used by the ``auto`` model of every kind but dishes.
+    """
+    k = 2.0 * math.pi / antenna.wavelength_m
+    d = _structure_distance(antenna, local)
+    np.maximum(d, minimum_distance_m(antenna), out=d)
+    d *= k / 2.0
+    np.square(d, out=d)
+    np.reciprocal(d, out=d)
+    d += 1.0
+    return d
+
+
+def _structure_distance(antenna: Antenna, local: np.ndarray) -> np.ndarray:
+    """Distance from antenna-frame points (rows forward, right, up) to the radiating structure [m].
+
+    Panels, omnis and arrays: the aperture segment (``length_m`` along the aperture axis);
+    directional antennas: the segment of ``length_m`` along boresight; dishes: the
+    reflector's disc (``diameter_m`` across, facing boresight); otherwise the centre.
+    """
+    f, r, u = local
+    if antenna.kind == "dish" and antenna.diameter_m:
+        radial = np.hypot(r, u) - 0.5 * antenna.diameter_m
+        np.maximum(radial, 0.0, out=radial)
+        return np.hypot(radial, f)
+    length = antenna.length_m or 0.0
+    if antenna.kind == "directional":
+        along, across = f, np.hypot(r, u)
+    else:
+        along, across = u, np.hypot(f, r)
+    excess = np.abs(along) - 0.5 * length
+    np.maximum(excess, 0.0, out=excess)
+    return np.hypot(excess, across)
+
+
+def element_zone(antenna: Antenna, points) -> np.ndarray:
+    """True at the points within the element zone of *antenna* (:func:`element_zone_distance_m`).
+
+    Parameters
+    ----------
+    antenna : Antenna
+        The emitter.
+    points : array_like, shape (..., 3)
+        Points in the site frame [m].
+
+    Returns
+    -------
+    numpy.ndarray of bool, shape ``points.shape[:-1]``
+    """
+    pts = np.asarray(points, dtype=float)
+    if pts.ndim == 0 or pts.shape[-1] != 3:
+        raise InputError(f"points must have shape (..., 3) [m]; got shape {pts.shape}")
+    origin, axes = antenna_frame(antenna)
+    local = axes @ (pts.reshape(-1, 3) - origin).T
+    inside = _structure_distance(antenna, local) < element_zone_distance_m(antenna)
+    return inside.reshape(pts.shape[:-1])

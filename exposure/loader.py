@@ -16,11 +16,12 @@ from typing import Any
 
 from pydantic import BaseModel, ValidationError
 
-from exposure.antenna import Antenna
+from exposure.antenna import EMITTER_KINDS, Antenna
 from exposure.errors import InputError
 from exposure.records import (
     SCHEMA_VERSION,
     ArrayEmitter,
+    DirectionalEmitter,
     DishEmitter,
     OmniEmitter,
     PanelEmitter,
@@ -37,6 +38,7 @@ _EMITTER_MODELS: dict[str, type[BaseModel]] = {
     "omni": OmniEmitter,
     "dish": DishEmitter,
     "array": ArrayEmitter,
+    "directional": DirectionalEmitter,
 }
 
 
@@ -244,7 +246,7 @@ def _reason(err: dict, loc: tuple, data: dict) -> str:
     if kind == "union_tag_invalid":
         return f"kind {err['ctx']['tag']!r} is not one of {err['ctx']['expected_tags']}"
     if kind == "union_tag_not_found":
-        return "kind is required: one of 'panel', 'omni', 'dish', 'array'"
+        return "kind is required: one of " + ", ".join(repr(k) for k in EMITTER_KINDS)
     if kind in ("finite_number",):
         return f"must be a finite number, got {value!r}"
     if kind in ("float_type", "int_type", "float_parsing", "int_parsing", "int_from_float"):

@@ -58,6 +58,8 @@ __all__ = [
     "validate_cuts",
     "sphere_integral",
     "pattern_efficiency",
+    "nominal_pattern",
+    "NOMINAL_SIDELOBE_FLOOR_DB",
     "directivity_dbi",
     "check_gain_beamwidths",
 ]
@@ -69,6 +71,9 @@ BEAMWIDTH_DIRECTIVITY_DEG2 = 41_253.0
 """Square degrees in a sphere, 4π (180/π)²: D ≈ 41253/(θh·θv) (common practice)."""
 
 _3GPP_COEFFICIENT_DB = 12.0  # 12 (x/x_3dB)^2 dB: exactly 3 dB at x = x_3dB / 2
+
+SKIRTS: tuple[str, ...] = ("3gpp", "tangent")
+"""Forms of a sector's horizontal cut beyond its half-power angles (:class:`SectorPattern`)."""
 
 
 class Pattern:
@@ -261,6 +266,12 @@ class SectorPattern(Pattern):
         Electrical downtilt :math:`\theta_e` [deg, positive down]: the vertical cut's peak.
     h_scan_deg, v_scan_deg : float
         Total scan ranges of a beam-steering array [deg]; 0 for a fixed beam.
+    skirt : {"3gpp", "tangent"}
+        The horizontal cut beyond the half-power angles: ``3gpp``, the published parabola;
+        ``tangent``, its tangent there (what :func:`pattern_for` builds for the models).
+    h_floor_db : float or None
+        A floor of the horizontal cut below :math:`A_m` [dB]: the horizontal side lobes of
+        an end-fire antenna (a Yagi–Uda's H-plane lobes at 60–90°); None for none.
 
     Notes
     -----
@@ -285,6 +296,24 @@ class SectorPattern(Pattern):
     project's choice; it only lowers attenuation (conservative), and leaves the main beam,
     the half-power angles and the front-to-back ratio as 3GPP gives them.
 
+    Tangent skirt (``skirt="tangent"``). Real panels' and Yagis' horizontal patterns fall
+    more slowly beyond the half-power points than the 3GPP parabola: against a full-wave
+    solver (nec2++, panels of dipoles before a wire reflector, REFERENCES.md § 9) the parabola
+    is 0.8–5 dB too deep at 60–110° off boresight. Beyond the half-power angle
+    :math:`\varphi_3/2` the cut therefore follows the parabola's tangent there,
+
+    .. math:: A_H(\varphi) = 12\,\frac{|\varphi|}{\varphi_3} - 3\ \mathrm{dB}
+              \qquad (|\varphi| > \varphi_3/2),
+
+    continuous in value and slope, 3 dB
+    at the half-power angle, 9 dB at :math:`\varphi_3` (the parabola: 12), 15 dB at
+    :math:`1.5\,\varphi_3` (the parabola: 27). It is the sectoral envelope of ITU-R F.1336
+    (:math:`-12x^{2-k_h} - \lambda_{k_h}`, :math:`x = \varphi/\varphi_3`) with
+    :math:`k_h = 1` (the form from memory; the published typical :math:`k_h = 0.7` falls
+    below the full-wave side lobes by up to 0.8 dB, so it was not taken). Against the
+    reference panels it stays 0.3–1.6 dB above the solver's cut from the half-power angle
+    to the back lobe (this project's choice, checked in ``tests/fullwave``).
+
     Beam-steering envelope (``h_scan_deg``, ``v_scan_deg`` > 0): the peak of a beam
     steered anywhere inside the scan ranges, centred on boresight horizontally and on the
     electrical tilt vertically. The envelope is 0 dB inside the scan ranges and rolls off
@@ -307,7 +336,11 @@ class SectorPattern(Pattern):
         elec_tilt_deg: float = 0.0,
         h_scan_deg: float = 0.0,
         v_scan_deg: float = 0.0,
+        skirt: str = "3gpp",
+        h_floor_db: float | None = None,
     ) -> None:
+        if skirt not in SKIRTS:
+            raise InputError(f"unknown horizontal skirt {skirt!r}; choose one of: {', '.join(SKIRTS)}")
         for name, value, high in (
             ("h_beamwidth_deg", h_beamwidth_deg, 360.0),
             ("v_beamwidth_deg", v_beamwidth_deg, 180.0),
@@ -334,20 +367,36 @@ class SectorPattern(Pattern):
         self._kh = _3GPP_COEFFICIENT_DB * NEPER_PER_DB / math.radians(self.h_beamwidth_deg) ** 2
         self._kv = _3GPP_COEFFICIENT_DB * NEPER_PER_DB / math.radians(self.v_beamwidth_deg) ** 2
         self._cap = self.front_to_back_db * NEPER_PER_DB
+        if h_floor_db is not None and not (np.isfinite(h_floor_db) and h_floor_db >= 0.0):
+            raise InputError(f"h_floor_db {h_floor_db!r} must be a finite number >= 0")
+        self.h_floor_db = None if h_floor_db is None else float(h_floor_db)
+        self._h_cap = self._cap if h_floor_db is None else min(self._cap, self.h_floor_db * NEPER_PER_DB)
         self._sla = self.sidelobe_floor_db * NEPER_PER_DB
         self._tilt = math.radians(self.elec_tilt_deg)
         self._h_half = math.radians(self.h_scan_deg) / 2.0
+        self.skirt = skirt
+        # the tangent skirt leaves the parabola at the half-power angle
+        self._h_knee = math.radians(self.h_beamwidth_deg) / 2.0 if skirt == "tangent" else math.inf
         self._v_half = math.radians(self.v_scan_deg) / 2.0
 
     @staticmethod
-    def _quadratic_attenuation(angle, half_scan: float, k: float, cap: float) -> np.ndarray:
-        """``min(k·max(|angle| − half_scan, 0)², cap)`` in place [Np]: the 3GPP cut, flat
-        inside a scan range (angle and half_scan in rad)."""
-        if half_scan > 0.0:
+    def _quadratic_attenuation(angle, half_scan: float, k: float, cap: float, knee: float = math.inf) -> np.ndarray:
+        """``min(k·(m² − max(m − knee, 0)²), cap)`` in place [Np] with ``m = max(|angle| −
+        half_scan, 0)``: the 3GPP cut, flat inside a scan range, continued beyond ``knee``
+        along its tangent (angles in rad; ``knee`` infinite for the 3GPP cut itself)."""
+        if half_scan > 0.0 or math.isfinite(knee):
             np.abs(angle, out=angle)
+        if half_scan > 0.0:
             angle -= half_scan
             np.maximum(angle, 0.0, out=angle)
-        np.square(angle, out=angle)
+        if math.isfinite(knee):
+            beyond = np.subtract(angle, knee)
+            np.maximum(beyond, 0.0, out=beyond)
+            np.square(beyond, out=beyond)
+            np.square(angle, out=angle)
+            angle -= beyond
+        else:
+            np.square(angle, out=angle)
         angle *= k
         np.minimum(angle, cap, out=angle)
         return angle
@@ -355,7 +404,7 @@ class SectorPattern(Pattern):
     def azimuth_part(self, forward, right, up=None, half_length: float = 0.0) -> np.ndarray:
         """Horizontal attenuation :math:`A_H` [Np] (not yet capped by the total), faded by
         :func:`zenith_fade` where ``up`` is given."""
-        a = self._quadratic_attenuation(np.arctan2(right, forward), self._h_half, self._kh, self._cap)
+        a = self._quadratic_attenuation(np.arctan2(right, forward), self._h_half, self._kh, self._h_cap, self._h_knee)
         if up is not None:
             a *= zenith_fade(forward, right, up, half_length)
         return a
@@ -893,7 +942,9 @@ def pattern_for(antenna: Antenna) -> Pattern:
     Tabulated cuts (``antenna.pattern``) win over everything else; otherwise a dish gets
     the ITU-R F.699 pattern (:math:`D/\\lambda` from ``diameter_m``, or from the gain by
     F.699's :math:`20\\log(D/\\lambda) \\approx G - 7.7`), an omni the omni pattern, a
-    panel the 3GPP sector and an array its scanned envelope.
+    panel or directional antenna the 3GPP sector with the tangent skirt
+    (:class:`SectorPattern`, conservative beyond the half-power angles) and an array its
+    scanned envelope with the same skirt.
 
     Raises
     ------
@@ -917,6 +968,8 @@ def pattern_for(antenna: Antenna) -> Pattern:
         if antenna.h_beamwidth_deg is None:
             raise InputError(f"{where}: a {antenna.kind} needs h_beamwidth_deg (or a pattern_file)")
         scan = antenna.kind == "array"
+        # an end-fire antenna has side lobes in its horizontal cut too: floor it at the side lobe
+        h_floor = antenna.sidelobe_floor_db if antenna.kind == "directional" else None
         return SectorPattern(
             antenna.h_beamwidth_deg,
             antenna.v_beamwidth_deg,
@@ -925,6 +978,8 @@ def pattern_for(antenna: Antenna) -> Pattern:
             antenna.elec_tilt_deg,
             antenna.h_scan_deg if scan else 0.0,
             antenna.v_scan_deg if scan else 0.0,
+            skirt="tangent",
+            h_floor_db=h_floor,
         )
     except InputError as exc:
         if exc.source is None and not exc.problems[0].startswith(where):
@@ -1014,19 +1069,53 @@ def sphere_integral(pattern: Pattern) -> float:
     return total * math.radians(180.0 / n_el) * math.radians(360.0 / n_az)
 
 
+NOMINAL_SIDELOBE_FLOOR_DB = 20.0
+"""Side-lobe level of the nominal pattern: 3GPP TR 36.814's SLA_V (from memory)."""
+
+
+def nominal_pattern(antenna: Antenna) -> Pattern:
+    """The pattern the energy diagnostics integrate: the published forms, not the envelopes.
+
+    :func:`pattern_for` gives the models an *envelope* (the tangent skirt, a side-lobe floor
+    at the highest side lobe everywhere), which is meant to lie above the real pattern and
+    so radiates more than the antenna does. For the energy balance of
+    :func:`pattern_efficiency` the 3GPP forms are used as published: the parabola beyond the
+    half-power angles and a side-lobe floor no higher than 3GPP TR 36.814's 20 dB. Tabulated
+    cuts and dishes are their own nominal patterns.
+    """
+    pattern = pattern_for(antenna)
+    if isinstance(pattern, SectorPattern):
+        return SectorPattern(
+            pattern.h_beamwidth_deg,
+            pattern.v_beamwidth_deg,
+            pattern.front_to_back_db,
+            max(pattern.sidelobe_floor_db, NOMINAL_SIDELOBE_FLOOR_DB),
+            pattern.elec_tilt_deg,
+            pattern.h_scan_deg,
+            pattern.v_scan_deg,
+        )
+    if isinstance(pattern, OmniPattern):
+        return OmniPattern(pattern.v_beamwidth_deg, max(pattern.sidelobe_floor_db, NOMINAL_SIDELOBE_FLOOR_DB), pattern.elec_tilt_deg)
+    return pattern
+
+
 def directivity_dbi(antenna: Antenna) -> float:
-    r"""Directivity of *antenna*'s relative pattern, :math:`10\log(4\pi/\oint g\,d\Omega)` [dBi]."""
-    return float(10.0 * math.log10(4.0 * math.pi / sphere_integral(pattern_for(antenna))))
+    r"""Directivity of *antenna*'s nominal pattern (:func:`nominal_pattern`),
+    :math:`10\log(4\pi/\oint g\,d\Omega)` [dBi]."""
+    return float(10.0 * math.log10(4.0 * math.pi / sphere_integral(nominal_pattern(antenna))))
 
 
-def pattern_efficiency(antenna: Antenna) -> float:
+def pattern_efficiency(antenna: Antenna, pattern: Pattern | None = None) -> float:
     r"""Power the pattern radiates over the power fed, :math:`\oint G\,d\Omega / 4\pi`.
 
-    :math:`G` is the absolute gain, ``antenna.gain_linear`` times the relative pattern
-    (:func:`sphere_integral`). A consistent datasheet gives at most 1 (antenna losses
-    make it less); much above 1, the gain and the pattern cannot both be true.
+    :math:`G` is the absolute gain, ``antenna.gain_linear`` times the nominal relative
+    pattern (:func:`nominal_pattern`, :func:`sphere_integral`). A consistent datasheet
+    gives at most 1 (antenna losses make it less); much above 1, the gain and the pattern
+    cannot both be true. Give *pattern* to integrate another (the envelope of
+    :func:`pattern_for`, say, to check a model's energy balance).
     """
-    return float(antenna.gain_linear * sphere_integral(pattern_for(antenna)) / (4.0 * math.pi))
+    pattern = nominal_pattern(antenna) if pattern is None else pattern
+    return float(antenna.gain_linear * sphere_integral(pattern) / (4.0 * math.pi))
 
 
 _EFFICIENCY_HIGH = 1.10  # > +0.4 dB: the pattern radiates more than it is fed

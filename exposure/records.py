@@ -23,7 +23,7 @@ from pydantic import (
     model_validator,
 )
 
-from exposure.antenna import Antenna, PatternCuts
+from exposure.antenna import DEFAULT_SIDELOBE_FLOOR_DB, Antenna, PatternCuts
 from exposure.units import DBD_TO_DBI, ERP_TO_EIRP, db_to_linear, dbm_to_watts, wavelength_m
 
 SCHEMA_VERSION = 1
@@ -59,6 +59,8 @@ EmitterId = Annotated[
     str, StringConstraints(pattern=r"^[A-Za-z0-9_.-]+$", min_length=1, max_length=40)
 ]
 Point2 = Annotated[list[Coordinate], Len(2, 2)]
+ApertureLength = Annotated[float, Field(ge=0.01, le=20)]
+"""A radiating length [m]: from a 1 cm patch to a 20 m broadcast array."""
 
 
 class Strict(BaseModel):
@@ -119,7 +121,7 @@ class EmitterBase(Strict):
 
     id: EmitterId
     operator: Name
-    frequency_mhz: Annotated[float, Field(gt=0, le=300_000)]
+    frequency_mhz: Annotated[float, Field(ge=0.1, le=300_000, description="Carrier frequency [MHz], 0.1 MHz (the lowest edge of the built-in limit tables) to 300 GHz.")]
     power_w: Positive | None = None
     power_dbm: Annotated[float, Field(ge=-30, le=100)] | None = None
     ports: Annotated[int, Field(ge=1, le=256)] = 1
@@ -274,8 +276,12 @@ class _Directional(EmitterBase):
     h_beamwidth_deg: Beamwidth
     v_beamwidth_deg: Beamwidth
     front_to_back_db: Annotated[float, Field(ge=0, le=60)] = 25.0
-    sidelobe_floor_db: Annotated[float, Field(ge=3, le=60)] = 20.0
-    length_m: Annotated[float, Field(gt=0, le=20)]
+    sidelobe_floor_db: Annotated[float, Field(ge=3, le=60)] = Field(
+        DEFAULT_SIDELOBE_FLOOR_DB,
+        description="Highest side lobe of the vertical pattern below the peak [dB] (not only the "
+        "first upper one); default 13 dB, a uniform array's first side lobe.",
+    )
+    length_m: ApertureLength
 
     def beamwidth_directivity(self) -> float:
         return BEAMWIDTH_DIRECTIVITY_DEG2 / (self.h_beamwidth_deg * self.v_beamwidth_deg)
@@ -319,6 +325,19 @@ class ArrayEmitter(_Directional):
         return super()._antenna_fields() | dict(h_scan_deg=self.h_scan_deg, v_scan_deg=self.v_scan_deg)
 
 
+class DirectionalEmitter(_Directional):
+    """An end-fire or small-aperture directional antenna (Yagi–Uda, log-periodic, horn, patch).
+
+    ``length_m`` is its length along boresight (a Yagi's boom, a horn's depth); its position
+    is the antenna's centre, the midpoint of that length on the boresight axis.
+    """
+
+    kind: Literal["directional"]
+    length_m: ApertureLength = Field(
+        description="Length along boresight (boom, horn depth) [m]; the position is its midpoint."
+    )
+
+
 class OmniEmitter(EmitterBase):
     """An omnidirectional collinear antenna."""
 
@@ -326,8 +345,12 @@ class OmniEmitter(EmitterBase):
     mech_tilt_deg: Tilt = 0.0
     elec_tilt_deg: Tilt = 0.0
     v_beamwidth_deg: Beamwidth
-    sidelobe_floor_db: Annotated[float, Field(ge=3, le=60)] = 20.0
-    length_m: Annotated[float, Field(gt=0, le=20)]
+    sidelobe_floor_db: Annotated[float, Field(ge=3, le=60)] = Field(
+        DEFAULT_SIDELOBE_FLOOR_DB,
+        description="Highest side lobe of the vertical pattern below the peak [dB] (not only the "
+        "first upper one); default 13 dB, a uniform array's first side lobe.",
+    )
+    length_m: ApertureLength
 
     def beamwidth_directivity(self) -> float:
         return BEAMWIDTH_DIRECTIVITY_DEG2 / (360.0 * self.v_beamwidth_deg)
@@ -347,7 +370,7 @@ class DishEmitter(EmitterBase):
     """A parabolic reflector (microwave link); gain may be derived from its aperture."""
 
     kind: Literal["dish"]
-    diameter_m: Annotated[float, Field(gt=0, le=30)]
+    diameter_m: Annotated[float, Field(ge=0.05, le=30)]
     aperture_efficiency: Annotated[float, Field(gt=0, le=1)] = 0.55
     azimuth_deg: Azimuth
     elevation_deg: Tilt = 0.0
@@ -376,7 +399,7 @@ class DishEmitter(EmitterBase):
 
 
 Emitter = Annotated[
-    Union[PanelEmitter, OmniEmitter, DishEmitter, ArrayEmitter], Field(discriminator="kind")
+    Union[PanelEmitter, OmniEmitter, DishEmitter, ArrayEmitter, DirectionalEmitter], Field(discriminator="kind")
 ]
 
 

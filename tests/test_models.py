@@ -21,11 +21,13 @@ from exposure.field import (
     REFLECTION_FACTORS,
     beam_direction,
     boresight_distance_to_limit,
+    induction_margin,
     minimum_distance_m,
     model_for,
     power_density,
     power_density_along_beam,
 )
+from exposure.frames import local_coordinates
 from exposure.patterns import pattern_efficiency, pattern_for
 
 PANEL = Antenna(
@@ -213,7 +215,18 @@ def test_auto_is_synthetic_capped_at_the_peak_gain_spherical_value():
     r2 = np.maximum(np.sum((pts - np.asarray(tilted.position_m)) ** 2, axis=-1), minimum_distance_m(tilted) ** 2)
     peak = tilted.eirp_w / (4 * math.pi * r2)
     assert np.mean(syn > peak) < 0.01
-    np.testing.assert_allclose(power_density(tilted, pts, model="auto"), np.minimum(syn, peak), rtol=1e-6)
+    # Since the full-wave issue auto spreads the power over the uniform-equivalent length and
+    # adds the coherent (spatial-peak) and induction margins; with those steps, it is the same
+    # minimum of synthetic and the peak-gain cap.
+    auto = power_density(tilted, pts, model="auto")
+    length = synthetic.effective_length_m(tilted.length_m, tilted.wavelength_m, tilted.v_beamwidth_deg)
+    syn_eff = power_density(replace(tilted, length_m=length), pts, model="synthetic")
+    margin = synthetic.coherent_margin(np.sqrt(r2), length, tilted.wavelength_m)
+    local = local_coordinates(tilted, pts).T
+    induction = induction_margin(tilted, local)
+    near = np.sqrt(r2) < 0.5 * synthetic.far_field_distance_m(length, tilted.wavelength_m)  # no blending there
+    np.testing.assert_allclose(auto[near], (np.minimum(syn_eff * margin, peak) * induction)[near], rtol=1e-5)
+    assert np.all(auto >= np.minimum(syn_eff, peak) * induction * (1 - 1e-6))  # margins >= 1 elsewhere
     sph = power_density(tilted, pts, model="spherical")
     assert np.mean(syn > sph * 10**0.05) < 0.02
 
@@ -263,7 +276,8 @@ def test_power_through_a_sphere_is_the_power_radiated(antenna):
     pts = np.array(antenna.position_m) + radius * np.stack([np.cos(e) * np.sin(a), np.cos(e) * np.cos(a), np.sin(e)], -1)
     s = power_density(antenna, pts, model="synthetic")
     flux = np.sum(s * np.cos(e)) * (math.pi / n_el) * (2 * math.pi / n_az) * radius**2
-    assert flux == pytest.approx(antenna.net_power_w * pattern_efficiency(antenna), rel=0.01)
+    # the pattern the models use (an envelope since the full-wave issue), not the nominal one
+    assert flux == pytest.approx(antenna.net_power_w * pattern_efficiency(antenna, pattern_for(antenna)), rel=0.01)
 
 
 def test_synthetic_handles_people_below_and_beside_the_array():

@@ -21,7 +21,15 @@ import numpy as np
 
 from exposure import __version__
 from exposure.antenna import Antenna
-from exposure.field import REFLECTION_FACTORS, boresight_distance_to_limit, model_for, power_density
+from exposure.field import (
+    REFLECTION_FACTORS,
+    boresight_distance_to_limit,
+    element_zone,
+    element_zone_distance_m,
+    structure_distance,
+    model_for,
+    power_density,
+)
 from exposure.limits import TIERS
 from exposure.loader import LoadedSite
 from exposure.records import ACCESS_TIER, polygon_area
@@ -109,7 +117,8 @@ def emitter_power_density(site: LoadedSite, points: np.ndarray) -> np.ndarray:
     Uses the auto model of each emitter and the site's reflection factor.
     """
     factor = reflection_factor(site)
-    return np.stack([power_density(a, points, reflection=factor) for a in site.antennas])
+    evaluation = site.record.site.evaluation
+    return np.stack([power_density(a, points, reflection=factor, evaluation=evaluation) for a in site.antennas])
 
 
 def probe(site: LoadedSite, point_m: Sequence[float]) -> dict:
@@ -127,7 +136,9 @@ def probe(site: LoadedSite, point_m: Sequence[float]) -> dict:
             "ratio": {tier: float(density[i] / limits.limit[tier][i]) for tier in TIERS},
         })
     total = {tier: float(np.sum(density / limits.limit[tier])) for tier in TIERS}
-    return {"point_m": [float(v) for v in point[0]], "standard": site.table.key, "emitters": emitters, "total_ratio": total}
+    inside = [a.id for a in site.antennas if bool(element_zone(a, point)[0])]
+    return {"point_m": [float(v) for v in point[0]], "standard": site.table.key, "emitters": emitters, "total_ratio": total,
+            "element_zone": inside}
 
 
 # --- surfaces --------------------------------------------------------------------------------
@@ -187,6 +198,36 @@ class _Columns:
     at_z: dict[str, np.ndarray]  # tier -> height of the column's peak (its base for averages)
 
 
+def element_cells(antennas: Sequence[Antenna], cx: np.ndarray, cy: np.ndarray, z_low: float, z_high: float,
+                  cell_m: float) -> np.ndarray:
+    """Cells (centres cx, cy, side cell_m) from which a person standing from z_low to z_high
+    reaches an emitter's element zone (:func:`exposure.field.element_zone`).
+
+    A cell counts where any point of its body-height column, sampled every quarter of the
+    zone's reach in height, is within the reach plus half the cell's diagonal: a zone
+    smaller than a cell is still marked (conservative).
+    """
+    marked = np.zeros(len(cx), dtype=bool)
+    inflate = math.sqrt(0.5) * cell_m
+    for antenna in antennas:
+        reach = element_zone_distance_m(antenna)
+        extent = reach + inflate + 0.5 * max(antenna.length_m or 0.0, antenna.diameter_m or 0.0)
+        x0, y0, z0 = antenna.position_m
+        if z_low > z0 + extent or z_high < z0 - extent:
+            continue
+        near = np.flatnonzero(np.hypot(cx - x0, cy - y0) <= extent)
+        if near.size == 0:
+            continue
+        heights = np.append(np.arange(z_low, z_high, 0.25 * reach), z_high)
+        points = np.empty((near.size, heights.size, 3))
+        points[..., 0] = cx[near, None]
+        points[..., 1] = cy[near, None]
+        points[..., 2] = heights[None, :]
+        distance = structure_distance(antenna, points)
+        marked[near] |= (distance < reach + inflate).any(axis=1)
+    return marked
+
+
 def _evaluate_columns(site, surface, limits: SiteLimits, offsets, cx, cy, acc, progress=None, done_total=None) -> _Columns:
     """Total exposure ratio per tier over the body height above each (cx, cy), in chunks
     of bounded size; updates the surface's shares (5 % rule) and headroom as it goes."""
@@ -208,7 +249,7 @@ def _evaluate_columns(site, surface, limits: SiteLimits, offsets, cx, cy, acc, p
         points[..., 2] = z[None, :]
         density = np.empty((n_e, n_c, n_h))
         for i, antenna in enumerate(site.antennas):
-            density[i] = power_density(antenna, points, reflection=factor)
+            density[i] = power_density(antenna, points, reflection=factor, evaluation=evaluation)
             if progress:
                 done_total[0] += n_c * n_h
                 progress(done_total[0], done_total[1])
@@ -288,7 +329,11 @@ def _evaluate_surface(site, surface, limits: SiteLimits, offsets, grid_m, progre
     maps = {tier: np.full(inside.size, np.nan) for tier in TIERS}
     for tier in TIERS:
         maps[tier][cell_index] = cells.ratio[tier]
-    grid = SurfaceGrid(x_m=x, y_m=y, ratio={t: m.reshape(inside.shape) for t, m in maps.items()}, cell_m=grid_m)
+    element = np.zeros(inside.size, dtype=bool)
+    z_low = surface.elevation_m
+    element[cell_index] = element_cells(site.antennas, cells.x, cells.y, z_low, z_low + site.record.site.body_height_m, grid_m)
+    grid = SurfaceGrid(x_m=x, y_m=y, ratio={t: m.reshape(inside.shape) for t, m in maps.items()}, cell_m=grid_m,
+                       element_zone=element.reshape(inside.shape))
     spots_xy = hot_spots(surface, site.antennas, site.record.site.body_height_m)
     spots = _evaluate_columns(site, surface, limits, offsets, *spots_xy, acc)
     return grid, cells, spots, acc
@@ -361,6 +406,7 @@ def _surface_result(site, surface, grid, cells: _Columns, spots: _Columns, acc) 
         exceedance_regions=regions,
         responsible=responsible,
         headroom_factor=headroom,
+        element_zone_area_m2=float(np.sum(grid.element_zone) * cell_area),
         grid=grid,
     )
 
@@ -476,20 +522,21 @@ def _validity_flags(site: LoadedSite, body_height: float) -> list[Flag]:
     flags = []
     accessible = [s for s in site.record.surfaces if s.access != "none"]
     for antenna, emitter in zip(site.antennas, site.record.emitters):
-        reactive = float(wavelength_m(antenna.frequency_mhz)) / (2 * math.pi)
+        reach = element_zone_distance_m(antenna)
         # The radiating elements span the aperture: measure from its ends (conservative).
         half_extent = 0.5 * (antenna.diameter_m if antenna.kind == "dish" else (antenna.length_m or 0.0))
         near = [
             s.name for s in accessible
             if distance_to_prism(antenna.position_m, s.outline, s.elevation_m, s.elevation_m + body_height)
-            - half_extent < reactive
+            - half_extent < reach
         ]
         if near:
             flags.append(Flag(
-                "reactive-near-field", "measure",
-                f"{antenna.id}: people on {', '.join(near)} can come within λ/2π = {reactive:.2f} m of the "
-                "antenna's elements, its reactive near field, where power density does not describe "
-                "exposure; keep them out (contact currents, RF burns) or measure E and H there.",
+                "element-zone", "measure",
+                f"{antenna.id}: people on {', '.join(near)} can come within one wavelength ({reach:.2f} m) of the "
+                "antenna's elements, its element zone, where induction fields add to the radiating field and a "
+                "power density does not describe exposure (hatched on the map); keep people out (contact "
+                "currents, RF burns) or measure E and H there.",
                 emitters=(antenna.id,), surface=near[0],
             ))
         if antenna.frequency_mhz < LOW_FREQUENCY_MHZ:
@@ -735,9 +782,12 @@ def _assumptions(site, grid_m, offsets, factor) -> list[Assumption]:
     tabulated = [e.id for e in site.record.emitters if e.pattern_file]
     out = [
         Assumption("Models", "Panels, omnis and arrays: synthetic multi-source model along the aperture with the "
-                   "antenna's pattern, capped by the spherical far-field value (OET 65; IEC 62232 practice). "
+                   "antenna's pattern (IEC 62232 practice), the power spread over the uniform aperture that forms "
+                   "the datasheet's vertical beam, capped by the spherical far-field value at peak gain (OET 65). "
+                   "Directional (end-fire) antennas: spherical model measured from the nearer end of their length. "
                    "Dishes: OET 65 aperture model (near field, transition, far field) with a reference "
-                   "side-lobe pattern off axis."),
+                   "side-lobe pattern off axis. Checked against a full-wave solver (nec2++): at or above its "
+                   "power density everywhere outside the element zone, to within 0.5 dB (README, Validation)."),
         Assumption("Reflection", f"ground_reflection = {info.ground_reflection}: power density × {factor:g} "
                    "everywhere (OET 65), conservative away from reflecting surfaces."),
         Assumption("Heights", f"People are evaluated from each surface up to {info.body_height_m:g} m, sampled at "
@@ -751,12 +801,25 @@ def _assumptions(site, grid_m, offsets, factor) -> list[Assumption]:
                    "compliant where ≤ 1."),
         Assumption("Left out", "Obstructions, parapets and people's bodies are not modelled (conservative: they "
                    "shield); nearby sites and emitters not in the record are not included (not conservative)."),
-        Assumption("Patterns", "Parametric patterns (3GPP TR 36.814/38.901 form) from datasheet beamwidths, "
-                   "front-to-back ratio and a side-lobe floor stand in for measured patterns"
-                   + (f"; tabulated cuts are used for {', '.join(tabulated)}." if tabulated else ".")),
-        Assumption("Near field", "In front of a panel the synthetic model spreads the datasheet gain over the "
-                   "pattern; it predicts less than OET 65's cylindrical formula, which puts all power inside the "
-                   "half-power beamwidth. `exposure screen --model cylindrical` gives that bound for comparison."),
+        Assumption("Patterns", "Parametric envelopes stand in for measured patterns: the 3GPP TR 36.814/38.901 "
+                   "form from datasheet beamwidths, continued beyond the half-power angles along its tangent (real "
+                   "side lobes fall more slowly than the 3GPP parabola), with the front-to-back ratio and a side-lobe "
+                   "floor (13 dB, a uniform array's first side lobe, where the record gives none)"
+                   + (f"; tabulated cuts are used for {', '.join(tabulated)}, nulls filled and never below that "
+                      "envelope." if tabulated else ".")),
+        Assumption("Near field", ("Spatial peak: in the Fresnel zone of an aperture the fields focus, so the power "
+                   "sum of the synthetic model is raised by up to 3 dB (the spatial-peak factor of 2; line-source "
+                   "theory), and by an induction-field margin within a few wavelengths of the elements."
+                   if info.evaluation == "peak" else
+                   "Spatial average: the synthetic model's power sum, averaged over the body height as IEC 62232 "
+                   "practice does (the Fresnel-zone focusing averages out); an induction-field margin applies within "
+                   "a few wavelengths of the elements.")
+                   + " OET 65's cylindrical formula is a spatial-average form; `exposure screen` lists it beside "
+                   "the model used."),
+        Assumption("Element zone", "Within one wavelength of an antenna's elements (its element zone) induction "
+                   "fields dominate and a power density does not describe exposure: those places are hatched on "
+                   "the map, their area is counted per surface, and they are flagged for E and H measurement where "
+                   "a person can reach them. The prediction there is kept for totals but is not a bare result."),
     ]
     for e in site.record.emitters:
         if e.duty_factor < 1:

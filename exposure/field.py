@@ -59,6 +59,7 @@ __all__ = [
     "ELEMENT_ZONE_WAVELENGTHS",
     "element_zone_distance_m",
     "element_zone",
+    "structure_distance",
     "induction_margin",
 ]
 
@@ -423,7 +424,7 @@ def induction_margin(antenna: Antenna, local: np.ndarray) -> np.ndarray:
     there (``tests/fullwave``). Used by the ``auto`` model of every kind but dishes.
     """
     k = 2.0 * math.pi / antenna.wavelength_m
-    d = _structure_distance(antenna, local)
+    d = structure_distance_local(antenna, local)
     np.maximum(d, minimum_distance_m(antenna), out=d)
     d *= k / 2.0
     np.square(d, out=d)
@@ -432,7 +433,7 @@ def induction_margin(antenna: Antenna, local: np.ndarray) -> np.ndarray:
     return d
 
 
-def _structure_distance(antenna: Antenna, local: np.ndarray) -> np.ndarray:
+def structure_distance_local(antenna: Antenna, local: np.ndarray) -> np.ndarray:
     """Distance from antenna-frame points (rows forward, right, up) to the radiating structure [m].
 
     Panels, omnis and arrays: the aperture segment (``length_m`` along the aperture axis);
@@ -454,6 +455,17 @@ def _structure_distance(antenna: Antenna, local: np.ndarray) -> np.ndarray:
     return np.hypot(excess, across)
 
 
+def structure_distance(antenna: Antenna, points) -> np.ndarray:
+    """Distance from site-frame points (shape (..., 3)) to the antenna's radiating structure [m]
+    (the aperture segment, an end-fire antenna's length, a dish's disc; see :func:`element_zone`)."""
+    pts = np.asarray(points, dtype=float)
+    if pts.ndim == 0 or pts.shape[-1] != 3:
+        raise InputError(f"points must have shape (..., 3) [m]; got shape {pts.shape}")
+    origin, axes = antenna_frame(antenna)
+    local = axes @ (pts.reshape(-1, 3) - origin).T
+    return structure_distance_local(antenna, local).reshape(pts.shape[:-1])
+
+
 def element_zone(antenna: Antenna, points) -> np.ndarray:
     """True at the points within the element zone of *antenna* (:func:`element_zone_distance_m`).
 
@@ -468,10 +480,4 @@ def element_zone(antenna: Antenna, points) -> np.ndarray:
     -------
     numpy.ndarray of bool, shape ``points.shape[:-1]``
     """
-    pts = np.asarray(points, dtype=float)
-    if pts.ndim == 0 or pts.shape[-1] != 3:
-        raise InputError(f"points must have shape (..., 3) [m]; got shape {pts.shape}")
-    origin, axes = antenna_frame(antenna)
-    local = axes @ (pts.reshape(-1, 3) - origin).T
-    inside = _structure_distance(antenna, local) < element_zone_distance_m(antenna)
-    return inside.reshape(pts.shape[:-1])
+    return structure_distance(antenna, points) < element_zone_distance_m(antenna)

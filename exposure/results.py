@@ -131,6 +131,7 @@ class SurfaceGrid:
     y_m: np.ndarray
     ratio: dict[str, np.ndarray]
     cell_m: float
+    element_zone: np.ndarray | None = None  # bool, same shape: cells whose body height reaches an element zone
 
 
 @dataclass(frozen=True)
@@ -150,6 +151,7 @@ class SurfaceResult:
     exceedance_regions: dict[str, list[list[tuple[float, float]]]]  # tier -> polygons [[x, y], ...]
     responsible: dict[str, list[str]]  # tier -> emitter ids with >= 5 % of their limit where exceeded
     headroom_factor: float | None  # power scale of every emitter before the governing ratio reaches 1
+    element_zone_area_m2: float = 0.0  # where a standing person reaches an emitter's element zone
     grid: SurfaceGrid | None = field(default=None, compare=False, repr=False)
 
     def to_json(self) -> dict:
@@ -167,6 +169,7 @@ class SurfaceResult:
             "exceedance_regions": {k: [[list(p) for p in poly] for poly in v] for k, v in self.exceedance_regions.items()},
             "responsible_emitters": self.responsible,
             "headroom_factor": self.headroom_factor,
+            "element_zone_area_m2": self.element_zone_area_m2,
         }
 
 

@@ -385,3 +385,33 @@ def test_random_sites_give_finite_results(load, x, y, z, azimuth, tilt, kind):
         assert math.isfinite(result.surfaces[0].max_ratio[tier])
         assert all(math.isfinite(v) and v >= 0 for v in result.emitters[0].boundary_m[tier].values())
     assert result.verdict in ("compliant", "verify-by-measurement", "mitigation-required")
+
+
+# --- the element zone ------------------------------------------------------------------------
+
+
+def test_element_zone_is_marked_counted_and_flagged_only_where_people_reach_it(load):
+    """Full-wave finding (REFERENCES.md § 9): within about a wavelength of the elements a power
+    density does not describe exposure. A 2 GHz panel (λ = 0.15 m) standing on a roof, its
+    aperture from 1.15 to 1.65 m: the cells within λ of it (plus half a cell) are marked and
+    counted, the flag names it; lifted 10 m up, nobody reaches it and nothing is marked."""
+    low = assess(load(site_dict([panel(y_m=5.0)], grid_m=0.1)))
+    terrace = low.surfaces[0]
+    lam = 299.792458 / 2000
+    assert terrace.element_zone_area_m2 > 0
+    # geometric bound: a disc of radius λ + cell half-diagonal around the aperture's axis
+    assert terrace.element_zone_area_m2 <= math.pi * (lam + 0.08) ** 2 * 1.3
+    assert [f.code for f in low.flags].count("element-zone") == 1
+    marked = terrace.grid.element_zone
+    gx, gy = np.meshgrid(terrace.grid.x_m, terrace.grid.y_m)
+    assert np.all(np.hypot(gx[marked], gy[marked] - 5.0) <= lam + 0.08)
+    high = assess(load(site_dict([panel(y_m=5.0, z_m=12.0)], grid_m=0.1)))
+    assert high.surfaces[0].element_zone_area_m2 == 0
+    assert "element-zone" not in [f.code for f in high.flags]
+
+
+def test_probe_names_the_element_zone(load):
+    """A probe within a wavelength of the elements says so; one farther out does not."""
+    site = load(site_dict([panel(y_m=5.0)]))
+    assert probe(site, (0.0, 5.1, 1.4))["element_zone"] == ["P1"]
+    assert probe(site, (0.0, 8.0, 1.4))["element_zone"] == []

@@ -144,3 +144,51 @@ def test_default_reflection_is_the_site_default():
     """Without --reflection, screen uses 'typical' (x2.56, OET 65), as site records do."""
     result = run("--frequency-mhz", "1960", "--eirp-w", "2000", "--model", "spherical", "--json")
     assert json.loads(result.stdout)["reflection_factor"] == 2.56
+
+
+def test_a_sector_kind_without_its_horizontal_beamwidth_is_refused():
+    """A panel given without --h-beamwidth-deg is an input error, not silently an omni."""
+    result = run("--frequency-mhz", "1960", "--power-w", "40", "--gain-dbi", "17.5", "--kind", "panel", "--length-m", "1.9")
+    assert result.exit_code == 2, result.output
+    assert "--kind panel needs --h-beamwidth-deg" in result.stderr
+
+
+def test_inferred_kind_is_said():
+    """Without --kind the output says which kind it took and how to say otherwise."""
+    out = screen_json("--frequency-mhz", "850", "--power-w", "100", "--gain-dbi", "10", "--length-m", "1.2", "--v-beamwidth-deg", "8")
+    assert out["kind"] == "omni" and "inferred" in out["kind_note"]
+
+
+@pytest.mark.parametrize("evaluation", ["peak", "spatial-average"])
+def test_auto_is_never_shorter_than_the_site_assessment(record, write_record, evaluation):
+    """`screen --model auto` gives at least the main-beam distance the assessment uses for the
+    same emitter (its `main_beam_boundary_m`), whatever the site's evaluation: both call the
+    same auto model, screen at the spatial peak."""
+    panel = {k: v for k, v in record["emitters"][0].items()}
+    record["emitters"] = [panel]
+    record["site"]["evaluation"] = evaluation
+    record["site"]["ground_reflection"] = "none"
+    assessed = runner.invoke(app, ["assess", str(write_record(record)), "--json"])
+    assert assessed.exit_code == 0, assessed.output
+    site_boundary = json.loads(assessed.stdout)["emitters"][0]["main_beam_boundary_m"]
+    out = screen_json(
+        "--frequency-mhz", "1960", "--power-w", "80", "--line-loss-db", "0.5", "--gain-dbi", "17.5", "--kind", "panel",
+        "--h-beamwidth-deg", "65", "--v-beamwidth-deg", "7", "--length-m", "1.8",
+    )
+    # the record's elec_tilt_deg (2) steers the beam; on the beam the distances agree to 2 %
+    for tier in ("general_public", "occupational"):
+        assert out["boundary_m"][tier] >= site_boundary[tier] * 0.98
+    assert out["governing"]["model"] == "auto" and "site assessment" in out["governing"]["why"]
+
+
+def test_directional_kind_uses_the_endfire_model():
+    """A Yagi (kind directional, length along boresight) resolves to the endfire model, which
+    from beyond its length is at least the spherical distance (nearer-end distance rule)."""
+    out = screen_json(
+        "--frequency-mhz", "900", "--power-w", "40", "--gain-dbi", "12", "--kind", "directional",
+        "--h-beamwidth-deg", "46", "--v-beamwidth-deg", "40", "--length-m", "0.45",
+    )
+    assert out["model"] == "endfire"
+    for tier in ("general_public", "occupational"):
+        assert out["models"]["endfire"][tier] >= out["models"]["spherical"][tier]
+        assert out["boundary_m"][tier] >= out["models"]["endfire"][tier]

@@ -56,6 +56,13 @@ def probe(
     total = result["total_ratio"]
     table.add_row("total", "", "", "", fmt(100 * total["general_public"]), fmt(100 * total["occupational"]), style="bold")
     out.print(table)
+    if result["element_zone"]:
+        out.print(
+            f"The point is in the element zone of {', '.join(esc(i) for i in result['element_zone'])} (within one "
+            "wavelength of its elements): induction fields dominate there and a power density does not describe "
+            "exposure. Measure E and H (and contact current); keep people out.",
+            style="bold",
+        )
 
 
 def register(app: typer.Typer) -> None:

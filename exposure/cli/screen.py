@@ -19,9 +19,10 @@ import typer
 from exposure.errors import InputError, UnknownKeyError
 from exposure.cli.common import fmt
 
-SCREEN_MODELS = ("auto", "spherical", "cylindrical", "synthetic", "aperture")
+SCREEN_MODELS = ("auto", "spherical", "cylindrical", "synthetic", "aperture", "endfire")
 REFLECTIONS = ("none", "typical", "full")
-_ORDER = ("spherical", "cylindrical", "synthetic", "aperture")
+_ORDER = ("spherical", "cylindrical", "synthetic", "aperture", "endfire")
+_SECTOR_KINDS = ("panel", "array", "directional")
 
 
 def register(app: typer.Typer) -> None:
@@ -45,7 +46,11 @@ def screen(
     line_loss_db: Annotated[
         float | None, typer.Option("--line-loss-db", help="Loss between transmitter and antenna, dB (with --power-w; default 0).", show_default=False)
     ] = None,
-    model: Annotated[str, typer.Option("--model", help="auto | spherical | cylindrical | synthetic | aperture.")] = "auto",
+    model: Annotated[str, typer.Option("--model", help="auto | spherical | cylindrical | synthetic | aperture | endfire.")] = "auto",
+    kind: Annotated[
+        str | None,
+        typer.Option("--kind", help="panel | omni | dish | array | directional (default: dish with --diameter-m, panel with --h-beamwidth-deg, else omni).", show_default=False),
+    ] = None,
     h_beamwidth_deg: Annotated[
         float | None, typer.Option("--h-beamwidth-deg", help="Horizontal half-power beamwidth, deg; omit for an omni.", show_default=False)
     ] = None,
@@ -70,7 +75,7 @@ def screen(
     """Distances along the main beam at which each model falls to each tier's limit."""
     options = _Options(
         frequency_mhz=frequency_mhz, eirp_w=eirp_w, power_w=power_w, gain_dbi=gain_dbi, line_loss_db=line_loss_db,
-        model=model, h_beamwidth_deg=h_beamwidth_deg, v_beamwidth_deg=v_beamwidth_deg, length_m=length_m,
+        model=model, kind=kind, h_beamwidth_deg=h_beamwidth_deg, v_beamwidth_deg=v_beamwidth_deg, length_m=length_m,
         diameter_m=diameter_m, aperture_efficiency=aperture_efficiency, reflection=reflection, standard=standard,
         distance_m=distance_m,
     )
@@ -128,7 +133,7 @@ def compute(o: _Options) -> dict[str, Any]:
     table = load_standard(o.standard)  # unknown standard -> exit 2 with the choices
     limits = {tier: table.power_density_limit_w_m2(o.frequency_mhz, tier) for tier in TIERS}
 
-    kind = "dish" if o.diameter_m is not None else ("panel" if o.h_beamwidth_deg is not None and o.h_beamwidth_deg < 360.0 else "omni")
+    kind = _kind(o)
     lam = float(wavelength_m(o.frequency_mhz))
     gain_source = "--gain-dbi"
     if o.gain_dbi is not None:
@@ -151,7 +156,7 @@ def compute(o: _Options) -> dict[str, Any]:
         net_power_w=net_power,
         gain_dbi=gain if gain is not None else 0.0,
         position_m=(0.0, 0.0, 0.0),
-        h_beamwidth_deg=o.h_beamwidth_deg if kind == "panel" else None,
+        h_beamwidth_deg=o.h_beamwidth_deg if kind in _SECTOR_KINDS else None,
         v_beamwidth_deg=o.v_beamwidth_deg,
         length_m=o.length_m,
         diameter_m=o.diameter_m,
@@ -161,7 +166,8 @@ def compute(o: _Options) -> dict[str, Any]:
     needs = _needs(o, kind, gain is not None)
     applicable = [m for m in _ORDER if not needs[m]]
     if o.model == "auto":
-        chosen = "aperture" if kind == "dish" else ("synthetic" if "synthetic" in applicable else "spherical")
+        near_field = {"dish": "aperture", "directional": "endfire"}.get(kind, "synthetic")
+        chosen = near_field if near_field in applicable else "spherical"
     else:
         chosen = o.model
         if needs[chosen]:
@@ -178,9 +184,10 @@ def compute(o: _Options) -> dict[str, Any]:
             tier: round(field.boresight_distance_to_limit(use, limits[tier], model=name, reflection=o.reflection), 4)
             for tier in TIERS
         }
-    if o.model == "auto" and chosen == "synthetic":  # auto: synthetic, never above spherical
+    if o.model == "auto":  # the site assessment's model for this emitter, spatial peak
+        use = antenna if chosen != "spherical" else flat
         primary = {
-            tier: round(field.boresight_distance_to_limit(antenna, limits[tier], model="auto", reflection=o.reflection), 4)
+            tier: round(field.boresight_distance_to_limit(use, limits[tier], model="auto", reflection=o.reflection), 4)
             for tier in TIERS
         }
     else:
@@ -204,7 +211,13 @@ def compute(o: _Options) -> dict[str, Any]:
         "limits_w_m2": limits,
         "models": boundaries,
         "not_applicable": {m: f"needs {needs[m]}" for m in _ORDER if needs[m]},
+        "governing": {"model": o.model, "resolves_to": chosen, "why": _why(o.model, chosen, kind)},
     }
+    if o.kind is None:
+        result["kind_note"] = (
+            f"kind {kind} inferred from the options given; give --kind (and --h-beamwidth-deg for a panel, "
+            "array or directional antenna) to say what it is"
+        )
     if o.distance_m is not None:
         if o.standard == "fcc":
             ex = screening.mpe_exemption(antenna.erp_w, o.frequency_mhz, o.distance_m)
@@ -222,6 +235,47 @@ def compute(o: _Options) -> dict[str, Any]:
     return result
 
 
+def _kind(o: _Options) -> str:
+    """The emitter kind: ``--kind``, or inferred as before ``--kind`` existed; a sector kind
+    without its horizontal beamwidth is refused rather than taken for an omni."""
+    from exposure.antenna import EMITTER_KINDS
+
+    if o.kind is None:
+        if o.diameter_m is not None:
+            return "dish"
+        return "panel" if o.h_beamwidth_deg is not None and o.h_beamwidth_deg < 360.0 else "omni"
+    if o.kind not in EMITTER_KINDS:
+        raise UnknownKeyError(f"--kind {o.kind!r}: unknown; choose one of: {', '.join(EMITTER_KINDS)}")
+    if o.kind in _SECTOR_KINDS and o.h_beamwidth_deg is None:
+        raise InputError(
+            f"--kind {o.kind} needs --h-beamwidth-deg (its horizontal half-power beamwidth); "
+            "for an omnidirectional antenna give --kind omni"
+        )
+    if o.kind == "dish" and o.diameter_m is None and o.gain_dbi is None:
+        raise InputError("--kind dish needs --diameter-m or --gain-dbi")
+    if o.kind != "dish" and o.diameter_m is not None:
+        raise InputError(f"--diameter-m is for dishes, not --kind {o.kind}")
+    return o.kind
+
+
+def _why(requested: str, chosen: str, kind: str) -> str:
+    if requested != "auto":
+        return f"requested with --model {requested}"
+    reason = {
+        "synthetic": "the synthetic near-field model with the spatial-peak margin, capped by the far field at peak gain",
+        "aperture": "OET 65's aperture (dish) model",
+        "endfire": "the spherical model measured from the nearer end of the antenna's length",
+        "spherical": "the spherical model (the options do not describe the aperture)",
+    }[chosen]
+    extra = (
+        "; OET 65's cylindrical form is a spatial average and the power-sum synthetic form omits the Fresnel-zone "
+        "focusing, both shown for comparison only"
+        if chosen == "synthetic"
+        else ""
+    )
+    return f"auto is the site assessment's model for a {kind}: {reason}; never below a full-wave reference{extra}"
+
+
 def _needs(o: _Options, kind: str, gain_known: bool) -> dict[str, str]:
     """For each model, the options it lacks ('' where it applies)."""
     power = "" if gain_known else "--gain-dbi (net power = EIRP / gain)"
@@ -229,17 +283,20 @@ def _needs(o: _Options, kind: str, gain_known: bool) -> dict[str, str]:
     def join(*parts: str) -> str:
         return ", ".join(p for p in parts if p)
 
-    not_dish = "a panel or omni (not --diameter-m)" if kind == "dish" else ""
+    not_linear = {"dish": "a panel, omni or array (not a dish)", "directional": "a panel, omni or array (not --kind directional)"}.get(kind, "")
     return {
         "spherical": "",
-        "cylindrical": not_dish or join("" if o.length_m is not None else "--length-m", power),
-        "synthetic": not_dish
+        "cylindrical": not_linear or join("" if o.length_m is not None else "--length-m", power),
+        "synthetic": not_linear
         or join(
             "" if o.length_m is not None else "--length-m",
             "" if o.v_beamwidth_deg is not None else "--v-beamwidth-deg",
             power,
         ),
         "aperture": "" if kind == "dish" else "--diameter-m",
+        "endfire": "--kind directional"
+        if kind != "directional"
+        else join("" if o.length_m is not None else "--length-m", "" if o.v_beamwidth_deg is not None else "--v-beamwidth-deg"),
     }
 
 
@@ -262,14 +319,17 @@ def _text(r: dict[str, Any]) -> str:
         "Distance along the main beam to the limit [m]:",
         f"  {'model':<13s}" + "".join(f"{t:>16s}" for t in tiers),
     ]
-    for name, values in r["models"].items():
-        mark = "*" if name == r["model"] else " "
-        lines.append(f"{mark} {name:<13s}" + "".join(f"{fmt(values[t]):>16s}" for t in tiers))
-    if r["model_requested"] == "auto" and r["model"] == "synthetic" and r["boundary_m"] != r["models"].get("synthetic"):
+    auto = r["model_requested"] == "auto"
+    if auto:
         lines.append(f"* {'auto':<13s}" + "".join(f"{fmt(r['boundary_m'][t]):>16s}" for t in tiers))
+    for name, values in r["models"].items():
+        mark = "*" if name == r["model"] and not auto else " "
+        lines.append(f"{mark} {name:<13s}" + "".join(f"{fmt(values[t]):>16s}" for t in tiers))
     for name, why in r["not_applicable"].items():
         lines.append(f"  {name:<13s} not applicable: {why}")
-    lines.append(f"(* the model used{' by auto' if r['model_requested'] == 'auto' else ''}: {r['model']})")
+    lines.append(f"(* governs: {r['governing']['why']})")
+    if "kind_note" in r:
+        lines.append(f"({r['kind_note']})")
     ex = r.get("exemption")
     if ex is not None:
         lines.append("")

@@ -457,6 +457,8 @@ def _plan_map(assessment, width_in: float, max_height_in: float, region, legend:
         if style["hatch"]:
             ax.add_patch(Polygon(s.outline, closed=True, fill=False, hatch=style["hatch"], linewidth=0,
                                  edgecolor=style["hatch_colour"], zorder=z + 0.6))
+        if s.grid is not None and s.grid.element_zone is not None and s.grid.element_zone.any():
+            _hatch_cells(ax, s.grid, z + 0.8)
         if s.grid is not None:
             for tier, line, casing in (("general_public", GP_LINE, False), ("occupational", OCC_LINE, True)):
                 if _contour(ax, s.grid.x_m, s.grid.y_m, s.grid.ratio[tier], 1.0, line, z + 1, casing=casing):
@@ -518,6 +520,9 @@ def _plan_map(assessment, width_in: float, max_height_in: float, region, legend:
         Line2D([], [], marker="s", color="#ffe680", markeredgecolor="black", linestyle="none", markersize=5,
                label="work position W1, W2, ..."),
     ]
+    if any(s.element_zone_area_m2 > 0 for s in assessment.surfaces):
+        handles.append(Patch(facecolor="none", edgecolor=ELEMENT_ZONE_COLOUR, hatch=ELEMENT_ZONE_HATCH, linewidth=0.6,
+                             label="element zone: measure E and H, no prediction"))
     for access in ("public", "occupational", "none"):
         if any(s.access == access for s in assessment.surfaces):
             style = ACCESS_STYLE[access]
@@ -528,6 +533,32 @@ def _plan_map(assessment, width_in: float, max_height_in: float, region, legend:
         fig.legend(handles=handles, loc="outside lower center", ncol=3, fontsize=6.5, frameon=False,
                    handlelength=2.4)
     return *_png(fig), drawn
+
+
+ELEMENT_ZONE_HATCH = "////"
+ELEMENT_ZONE_COLOUR = "#303030"
+
+
+def _hatch_cells(ax, grid, zorder: float) -> None:
+    """Hatch the grid cells that reach an emitter's element zone (one outline per region)."""
+    import contourpy
+    from matplotlib.patches import Polygon
+
+    mask = grid.element_zone.astype(float)
+    if mask.shape[0] < 2 or mask.shape[1] < 2:
+        ax.plot(grid.x_m.mean(), grid.y_m.mean(), marker="x", color=ELEMENT_ZONE_COLOUR, zorder=zorder)
+        return
+    # pad by one cell so that zones on the edge of the grid close
+    dx = grid.x_m[1] - grid.x_m[0]
+    dy = grid.y_m[1] - grid.y_m[0]
+    x = np.concatenate([[grid.x_m[0] - dx], grid.x_m, [grid.x_m[-1] + dx]])
+    y = np.concatenate([[grid.y_m[0] - dy], grid.y_m, [grid.y_m[-1] + dy]])
+    padded = np.pad(mask, 1)
+    filled = contourpy.contour_generator(x, y, padded, fill_type="OuterOffset").filled(0.5, 2.0)
+    for points, offsets in zip(*filled):
+        for a, b in zip(offsets[:-1], offsets[1:]):
+            ax.add_patch(Polygon(points[a:b], closed=True, fill=False, hatch=ELEMENT_ZONE_HATCH,
+                                 edgecolor=ELEMENT_ZONE_COLOUR, linewidth=0.6, zorder=zorder))
 
 
 def surfaces_along(assessment, origin: tuple[float, float], azimuth_deg: float, s_m: np.ndarray):

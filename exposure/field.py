@@ -424,17 +424,16 @@ def induction_margin(antenna: Antenna, local: np.ndarray) -> np.ndarray:
     there (``tests/fullwave``). Used by the ``auto`` model of every kind but dishes.
     """
     k = 2.0 * math.pi / antenna.wavelength_m
-    d = structure_distance_local(antenna, local)
-    np.maximum(d, minimum_distance_m(antenna), out=d)
-    d *= k / 2.0
-    np.square(d, out=d)
-    np.reciprocal(d, out=d)
-    d += 1.0
-    return d
+    d2 = structure_distance_local(antenna, local, squared=True)
+    np.maximum(d2, minimum_distance_m(antenna) ** 2, out=d2)
+    np.divide((2.0 / k) ** 2, d2, out=d2)
+    d2 += 1.0
+    return d2
 
 
-def structure_distance_local(antenna: Antenna, local: np.ndarray) -> np.ndarray:
-    """Distance from antenna-frame points (rows forward, right, up) to the radiating structure [m].
+def structure_distance_local(antenna: Antenna, local: np.ndarray, squared: bool = False) -> np.ndarray:
+    """Distance from antenna-frame points (rows forward, right, up) to the radiating structure [m]
+    (its square with *squared*).
 
     Panels, omnis and arrays: the aperture segment (``length_m`` along the aperture axis);
     directional antennas: the segment of ``length_m`` along boresight; dishes: the
@@ -444,15 +443,18 @@ def structure_distance_local(antenna: Antenna, local: np.ndarray) -> np.ndarray:
     if antenna.kind == "dish" and antenna.diameter_m:
         radial = np.hypot(r, u) - 0.5 * antenna.diameter_m
         np.maximum(radial, 0.0, out=radial)
-        return np.hypot(radial, f)
-    length = antenna.length_m or 0.0
-    if antenna.kind == "directional":
-        along, across = f, np.hypot(r, u)
+        np.square(radial, out=radial)
+        radial += f * f
     else:
-        along, across = u, np.hypot(f, r)
-    excess = np.abs(along) - 0.5 * length
-    np.maximum(excess, 0.0, out=excess)
-    return np.hypot(excess, across)
+        length = antenna.length_m or 0.0
+        along, across = (f, (r, u)) if antenna.kind == "directional" else (u, (f, r))
+        radial = np.abs(along)
+        radial -= 0.5 * length
+        np.maximum(radial, 0.0, out=radial)
+        np.square(radial, out=radial)
+        for a in across:
+            radial += a * a
+    return radial if squared else np.sqrt(radial, out=radial)
 
 
 def structure_distance(antenna: Antenna, points) -> np.ndarray:

@@ -70,6 +70,7 @@ __all__ = [
     "UNIFORM_BEAMWIDTH_LAMBDA_RAD",
     "effective_length_m",
     "coherent_margin",
+    "coherent_margin_squared",
     "MAX_SOURCES",
     "ANGULAR_SPACING",
     "source_count",
@@ -177,12 +178,23 @@ def coherent_margin(distance_m, length_m: float, wavelength_m: float) -> np.ndar
     to a **spatial-peak** evaluation; averaged over a body's height the focusing averages
     out and the power sum is what IEC 62232 practice uses (from memory).
     """
-    rho = np.asarray(distance_m, dtype=float) / far_field_distance_m(length_m, wavelength_m)
-    knots = np.log([k for k, _ in SPATIAL_PEAK_MARGIN_DB])
-    values = [v for _, v in SPATIAL_PEAK_MARGIN_DB]
+    r2 = np.square(np.asarray(distance_m, dtype=float))
+    return coherent_margin_squared(r2, length_m, wavelength_m)
+
+
+_MARGIN_KNOTS_LOG = np.log([k for k, _ in SPATIAL_PEAK_MARGIN_DB])
+_MARGIN_NEPERS = np.array([v for _, v in SPATIAL_PEAK_MARGIN_DB]) * (math.log(10.0) / 10.0)
+
+
+def coherent_margin_squared(distance2_m2: np.ndarray, length_m: float, wavelength_m: float) -> np.ndarray:
+    """:func:`coherent_margin` from squared distances [m²] (the kernels' common path; overwrites nothing)."""
+    r_ff = far_field_distance_m(length_m, wavelength_m)
     with np.errstate(divide="ignore"):
-        margin_db = np.interp(np.log(rho), knots, values)
-    return 10.0 ** (margin_db / 10.0)
+        log_rho = np.log(distance2_m2)
+    log_rho *= 0.5
+    log_rho -= math.log(r_ff)
+    margin = np.interp(log_rho, _MARGIN_KNOTS_LOG, _MARGIN_NEPERS)
+    return np.exp(margin, out=margin)
 
 
 def synthetic_kernel(
@@ -260,7 +272,13 @@ def synthetic_kernel(
     horizontal = np.sqrt(horizontal2)
     distance2 = up * up
     distance2 += horizontal2
-    weight = far_field_weight(np.sqrt(distance2), length_m, wavelength_m)
+    # log(r / r_ff) once: the far-field blend and the spatial-peak margin both take it
+    with np.errstate(divide="ignore"):
+        log_rho = np.log(distance2)
+    log_rho *= 0.5
+    log_rho -= math.log(far_field_distance_m(length_m, wavelength_m))
+    weight = np.multiply(log_rho, -1.0 / math.log(2.0))  # log2(r_ff / r), as far_field_weight
+    np.clip(weight, 0.0, 1.0, out=weight)
     part = pattern.azimuth_part(forward, right, up, 0.5 * length_m)
     np.maximum(distance2, r_min * r_min, out=distance2)
 
@@ -290,7 +308,8 @@ def synthetic_kernel(
             pattern, sub_part, scale, length_m, wavelength_m, horizontal2[idx], up[idx], r_min, angular_spacing
         )
     if spatial_peak:
-        result *= coherent_margin(np.sqrt(distance2[idx]), length_m, wavelength_m)
+        margin = np.interp(log_rho[idx], _MARGIN_KNOTS_LOG, _MARGIN_NEPERS)
+        result *= np.exp(margin, out=margin)
     if need_spherical:
         sph = spherical[idx]
         w = weight[idx]

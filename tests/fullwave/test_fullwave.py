@@ -114,3 +114,33 @@ def test_spatial_average_is_never_above_peak(antenna):
     peak = power_density(tool, solution.points_m, evaluation="peak")
     average = power_density(tool, solution.points_m, evaluation="spatial-average")
     assert np.all(average <= peak * (1 + 1e-12))
+
+
+def test_screen_command_distance_against_the_full_wave_distance():
+    """`exposure screen` itself (auto, no reflection) for the 900 MHz panel from its datasheet
+    values: with the transmitter power set so that the FCC general-public limit at 900 MHz
+    (f/1500 mW/cm² = 6 W/m², 47 CFR 1.1310 Table 1) falls where the full-wave field along the
+    beam falls to it at 3 m, the screened distance is 1.0 to 1.6 times 3 m (linearity)."""
+    import json
+
+    from typer.testing import CliRunner
+
+    from exposure.cli import app
+
+    antenna = next(a for a in ANTENNAS if a.name == "panel6-900")
+    solution = solve(antenna)
+    record = compare.ds.record_for(solution)
+    distances, points = compare.beam_points(antenna, record)
+    power, s_e, s_h = solve_points(antenna, points)
+    reference = np.maximum(s_e, s_h)
+    level = float(np.interp(math.log(3.0), np.log(distances), reference))
+    truth = compare.last_crossing(distances, reference, level)
+    scale = 6.0 / level  # power that puts the 6 W/m2 limit where the full-wave field has `level`
+    result = CliRunner().invoke(app, [
+        "screen", "--frequency-mhz", "900", "--power-w", repr(power * scale), "--gain-dbi", str(record["gain_dbi"]),
+        "--kind", "panel", "--h-beamwidth-deg", str(record["h_beamwidth_deg"]), "--v-beamwidth-deg",
+        str(record["v_beamwidth_deg"]), "--length-m", str(record["length_m"]), "--reflection", "none", "--json",
+    ])
+    assert result.exit_code == 0, result.output
+    screened = json.loads(result.stdout)["boundary_m"]["general_public"]
+    assert 1.0 <= screened / truth <= 1.6, f"{screened:.2f} m against {truth:.2f} m"

@@ -392,12 +392,10 @@ def load_limits_file(path: str | Path) -> LimitTable:
         ``tiers.occupational.bands[2].e_v_m.coef``) and the reason; a TOML syntax error
         names the line.
     """
+    from exposure.inputs import TABLE_MAX_BYTES, read_input
+
     path = Path(path)
-    try:
-        data = path.read_bytes()
-    except OSError as exc:
-        raise InputError(f"cannot read the limits file: {exc.strerror or exc}", source=str(path)) from None
-    return _parse(data, path)
+    return _parse(read_input(path, max_bytes=TABLE_MAX_BYTES, what="limits file"), path)
 
 
 def resolve(standard: str | None = None, limits_file: str | Path | None = None) -> LimitTable:
@@ -543,7 +541,9 @@ def _describe(error: Any) -> str:
     else:
         reason = error["msg"].removeprefix("Value error, ")
         given = error.get("input")
-        if isinstance(given, (int, float, str, bool)) and kind != "value_error":
+        if isinstance(given, str):  # describe, never quote: the file may be anything
+            reason += f" (got text of {len(given)} characters)"
+        elif isinstance(given, (int, float, bool)) and kind != "value_error":
             reason += f" (got {given!r})"
     return f"{where}: {reason}"
 

@@ -18,6 +18,7 @@ from pydantic import BaseModel, ValidationError
 
 from exposure.antenna import EMITTER_KINDS, Antenna
 from exposure.errors import InputError
+from exposure.inputs import RECORD_MAX_BYTES, parse_json, printable, read_input
 from exposure.records import (
     SCHEMA_VERSION,
     ArrayEmitter,
@@ -31,7 +32,7 @@ from exposure.records import (
     WorkPosition,
 )
 
-MAX_FILE_BYTES = 20 * 1024 * 1024
+MAX_FILE_BYTES = RECORD_MAX_BYTES
 SUFFIXES = (".toml", ".json")
 _EMITTER_MODELS: dict[str, type[BaseModel]] = {
     "panel": PanelEmitter,
@@ -69,16 +70,9 @@ def read_document(path: str | Path) -> tuple[dict, bytes]:
     """
     path = Path(path)
     src = str(path)
-    if not path.exists():
-        raise InputError("no such file", src)
-    if not path.is_file():
-        raise InputError("not a file (a site record is one .toml or .json file)", src)
     if path.suffix.lower() not in SUFFIXES:
-        raise InputError(f"unknown file type {path.suffix or '(none)'!r}; use .toml or .json", src)
-    size = path.stat().st_size
-    if size > MAX_FILE_BYTES:
-        raise InputError(f"file is {size / 1e6:.0f} MB; a site record is at most {MAX_FILE_BYTES / 1e6:.0f} MB", src)
-    raw = path.read_bytes()
+        raise InputError(f"unknown file type {printable(path.suffix) or '(none)'!r}; use .toml or .json", src)
+    raw = read_input(path, max_bytes=MAX_FILE_BYTES, what="site record")
     if not raw.strip():
         raise InputError("file is empty", src)
     if b"\x00" in raw:
@@ -92,11 +86,10 @@ def read_document(path: str | Path) -> tuple[dict, bytes]:
             data = tomllib.loads(text)
         except tomllib.TOMLDecodeError as exc:
             raise InputError(f"TOML syntax error: {exc}", src) from None
+        except RecursionError:
+            raise InputError("TOML nested too deeply to be a site record", src) from None
     else:
-        try:
-            data = json.loads(text)
-        except json.JSONDecodeError as exc:
-            raise InputError(f"JSON syntax error at line {exc.lineno}, column {exc.colno}: {exc.msg}", src) from None
+        data = parse_json(text, src)
         if not isinstance(data, dict):
             raise InputError("the top level must be an object of site, surfaces and emitters", src)
     return data, raw
@@ -145,9 +138,12 @@ def load_site(
 
     if limits_file is None and standard is None and record.site.limits_file:
         limits_file = path.parent / record.site.limits_file
-        if not limits_file.is_file():
-            raise InputError(f"site.limits_file: no such file {str(limits_file)!r}", src)
-    table = resolve(standard or record.site.standard, limits_file)
+    try:
+        table = resolve(standard or record.site.standard, limits_file)
+    except InputError as exc:
+        if not record.site.limits_file or standard is not None:
+            raise
+        raise InputError([f"site.limits_file: {line}" for line in exc.lines()], src) from None
 
     problems = []
     for i, emitter in enumerate(record.emitters):
@@ -182,8 +178,6 @@ def load_site(
 def _read_pattern(path: Path):
     from exposure.patterns import read_pattern_csv
 
-    if not path.is_file():
-        raise InputError(f"no such file {str(path)!r}")
     return read_pattern_csv(path)
 
 

@@ -922,12 +922,11 @@ def read_pattern_csv(path: str | Path) -> PatternCuts:
     InputError
         Naming the file and, per problem, the line and the reason.
     """
+    from exposure.inputs import read_text
+
     path = Path(path)
     source = str(path)
-    try:
-        text = path.read_text(encoding="utf-8-sig")
-    except (OSError, UnicodeDecodeError) as exc:
-        raise InputError(f"cannot read the pattern file: {exc}", source=source) from None
+    text = read_text(path, what="pattern file")
     rows = [(n, line) for n, line in enumerate(text.splitlines(), start=1)
             if line.strip() and not line.lstrip().startswith("#")]
     if not rows:
@@ -935,7 +934,8 @@ def read_pattern_csv(path: str | Path) -> PatternCuts:
     n0, header = rows[0]
     if [c.strip().lower() for c in header.split(",")] != ["plane", "angle_deg", "attenuation_db"]:
         raise InputError(
-            f"line {n0}: header must be 'plane,angle_deg,attenuation_db', got {header.strip()!r}",
+            f"line {n0}: header must be 'plane,angle_deg,attenuation_db' (the first line is something else; "
+            "is this a pattern file?)",
             source=source,
         )
     problems: list[str] = []
@@ -946,12 +946,12 @@ def read_pattern_csv(path: str | Path) -> PatternCuts:
             continue
         plane = fields[0].strip().lower()
         if plane not in data:
-            problems.append(f"line {n}: plane must be 'h' or 'v', got {fields[0].strip()!r}")
+            problems.append(f"line {n}: plane must be 'h' or 'v'")
             continue
         try:
             angle, value = float(fields[1]), float(fields[2])
         except ValueError:
-            problems.append(f"line {n}: angle_deg and attenuation_db must be numbers, got {fields[1].strip()!r}, {fields[2].strip()!r}")
+            problems.append(f"line {n}: angle_deg and attenuation_db must be numbers")
             continue
         if not (math.isfinite(angle) and abs(angle) <= 360.0):
             problems.append(f"line {n}: angle_deg {angle!r} must be finite and within -360..360")

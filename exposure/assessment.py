@@ -32,7 +32,7 @@ from exposure.field import (
 )
 from exposure.limits import TIERS
 from exposure.loader import LoadedSite
-from exposure.records import ACCESS_TIER, polygon_area
+from exposure.records import ACCESS_TIER, body_sample_count, grid_budget_problem, polygon_area
 from exposure.results import (
     DIRECTIONS,
     SEVERITIES,
@@ -54,8 +54,6 @@ area where the limit is exceeded (47 CFR § 1.1307(b)(3), multiple-transmitter s
 MEASURE_ABOVE = 0.5
 """Default: a governing ratio at or above 0.5 (−3 dB of the limit, the model's
 uncertainty band) calls for a measurement."""
-HEIGHT_STEP_M = 0.2
-"""Vertical sampling of the body height above each surface point."""
 POINT_BUDGET = 4_000_000
 """Emitter-point values held at once (≈ 32 MB of float64): bounds memory per chunk."""
 LOW_FREQUENCY_MHZ = 30.0
@@ -95,9 +93,8 @@ def reflection_factor(site: LoadedSite) -> float:
 
 def body_offsets(body_height_m: float) -> np.ndarray:
     """Heights above a surface at which a standing person is sampled [m]: 0 to the body
-    height in steps of at most ``HEIGHT_STEP_M``, both ends included."""
-    n = max(2, math.ceil(body_height_m / HEIGHT_STEP_M) + 1)
-    return np.linspace(0.0, body_height_m, n)
+    height in steps of at most ``exposure.records.HEIGHT_STEP_M``, both ends included."""
+    return np.linspace(0.0, body_height_m, body_sample_count(body_height_m))
 
 
 def reduce_over_height(values: np.ndarray, evaluation: str, axis: int = -1) -> np.ndarray:
@@ -617,6 +614,11 @@ def assess(
         raise InputError(f"--measure-above: {measure_above:g} must be in (0, 1]")
     info = site.record.site
     grid_m = grid_m or info.grid_m
+    problem = grid_budget_problem(site.record, grid_m)
+    if problem:
+        from exposure.errors import InputError
+
+        raise InputError(problem.replace("grid_m", "--grid-m", 1), str(site.path))
     offsets = body_offsets(info.body_height_m)
     limits = site_limits(site)
     factor = reflection_factor(site)

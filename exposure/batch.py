@@ -50,9 +50,10 @@ from typing import Literal
 
 from exposure import __version__
 from exposure.errors import InputError
-from exposure.io import atomic_write_bytes, atomic_write_json
+from exposure.io import atomic_write_bytes, atomic_write_json, json_bytes, remove_leftovers, write_pair
 from exposure.limits import TIERS
 from exposure.loader import SUFFIXES
+from exposure.records import GRID_M_RANGE
 from exposure.results import SEVERITIES
 
 Status = Literal["done", "skipped", "failed"]
@@ -387,26 +388,24 @@ def _assess_and_write(task: SiteTask) -> dict:
     }
 
     folder = Path(task.out_dir) / site.id
-    _clear_site_folder(folder, keep_report=task.report)
     if task.report:
-        from exposure.report import write_report
+        from exposure.report import write_report  # renders in full, then writes atomically
 
-        write_report(assessment, site, folder / REPORT_NAME)
-    atomic_write_json(folder / RESULT_NAME, result)
+        write_pair(folder / REPORT_NAME, lambda path: write_report(assessment, site, path),
+                   folder / RESULT_NAME, json_bytes(result))
+    else:
+        _clear_site_folder(folder)
+        atomic_write_json(folder / RESULT_NAME, result)
     return result
 
 
-def _clear_site_folder(folder: Path, keep_report: bool) -> None:
-    """Remove the commit mark first, then anything it would no longer vouch for.
-
-    Also the temporary files a killed process (``kill -9``) could not remove.
-    """
+def _clear_site_folder(folder: Path) -> None:
+    """Remove the commit mark first, then the report it would no longer vouch for (a report of
+    an earlier input), and the temporary files a killed process (``kill -9``) left."""
     (folder / RESULT_NAME).unlink(missing_ok=True)
-    if not keep_report:
-        (folder / REPORT_NAME).unlink(missing_ok=True)  # a report of an earlier input
+    (folder / REPORT_NAME).unlink(missing_ok=True)
     for name in (RESULT_NAME, REPORT_NAME):
-        for leftover in folder.glob(f".{name}.*.part"):
-            leftover.unlink(missing_ok=True)
+        remove_leftovers(folder / name)
 
 
 def _failed(file: str, site_id: str | None, problems: Sequence[str], start: float) -> SiteRow:
@@ -523,11 +522,29 @@ def _one_thread_environment():
 _STOP = None  # in a pool worker: the pool's stop event
 
 
+PARENT_POLL_S = 0.5
+"""How often a pool worker checks that the batch that started it is still alive [s]."""
+
+
 def _init_pool_worker(stop) -> None:
-    """An idle worker ignores Ctrl-C (the parent ends the pool) and keeps the stop event."""
+    """An idle worker ignores Ctrl-C (the parent ends the pool), keeps the stop event, and
+    dies with its parent: a watchdog thread ends the process within half a second of the
+    parent's death (``kill -9`` of the batch gives the pool no chance to stop it); a site
+    it was writing leaves at most a temporary file, which the next run removes."""
     global _STOP
     _STOP = stop
     signal.signal(signal.SIGINT, signal.SIG_IGN)
+    import threading
+
+    parent = os.getppid()
+
+    def watch() -> None:
+        while True:
+            time.sleep(PARENT_POLL_S)
+            if os.getppid() != parent:
+                os._exit(1)
+
+    threading.Thread(target=watch, name="exposure-parent-watchdog", daemon=True).start()
 
 
 def _pool_task(task: SiteTask) -> SiteRow | None:
@@ -703,8 +720,11 @@ def _checked(options: BatchOptions) -> BatchOptions:
     out_dir = Path(options.out_dir)
     if out_dir.exists() and not out_dir.is_dir():
         raise InputError("exists and is not a folder", str(out_dir))
+    low, high = GRID_M_RANGE
     if options.grid_m is not None and not (math.isfinite(options.grid_m) and options.grid_m > 0):
         raise InputError(f"must be a positive number of metres, got {options.grid_m!r}", "--grid-m")
+    if options.grid_m is not None and not low <= options.grid_m <= high:
+        raise InputError(f"must be between {low:g} and {high:g} m, as for assess, got {options.grid_m!r}", "--grid-m")
     if options.limits_file is not None and not Path(options.limits_file).is_file():
         raise InputError("no such file", str(options.limits_file))
     out_dir.mkdir(parents=True, exist_ok=True)

@@ -41,8 +41,44 @@ def atomic_write_bytes(path: str | Path, data: bytes) -> Path:
 
 def atomic_write_json(path: str | Path, payload: Any) -> Path:
     """Write *payload* as indented UTF-8 JSON to *path* atomically."""
-    text = json.dumps(payload, indent=2, ensure_ascii=False, allow_nan=False) + "\n"
-    return atomic_write_bytes(path, text.encode("utf-8"))
+    return atomic_write_bytes(path, json_bytes(payload))
+
+
+def remove_leftovers(path: str | Path) -> None:
+    """Remove the temporary files a killed process (``kill -9``) left for *path*."""
+    path = Path(path)
+    if path.parent.is_dir():
+        for leftover in path.parent.glob(f".{path.name}.*.part"):
+            leftover.unlink(missing_ok=True)
+
+
+def write_pair(document: str | Path, write_document: Callable[[Path], Any], mark: str | Path, mark_data: bytes) -> None:
+    """Write a document and the mark that vouches for it (a report and its JSON) as one unit.
+
+    ``write_document(path)`` writes the document atomically (:func:`atomic_write_bytes`, or a
+    renderer that ends in it). The mark is removed first and renamed into place last, so that at no moment does a
+    mark stand beside a document of another input; temporary files that earlier killed runs
+    left are removed first. If the write is interrupted (an exception, Ctrl-C, or SIGTERM
+    turned into ``KeyboardInterrupt``) after the document is in place but before the mark,
+    the document is removed again: both or neither. Only ``kill -9`` in the instant between
+    the two renames can leave a document without its mark (never beside another's mark);
+    the next run replaces both.
+    """
+    document, mark = Path(document), Path(mark)
+    for target in (document, mark):
+        remove_leftovers(target)
+    mark.unlink(missing_ok=True)
+    write_document(document)
+    try:
+        atomic_write_bytes(mark, mark_data)
+    except BaseException:
+        document.unlink(missing_ok=True)
+        raise
+
+
+def json_bytes(payload: Any) -> bytes:
+    """*payload* as indented UTF-8 JSON with a final newline (what :func:`atomic_write_json` writes)."""
+    return (json.dumps(payload, indent=2, ensure_ascii=False, allow_nan=False) + "\n").encode("utf-8")
 
 
 def _umask() -> int:

@@ -83,7 +83,8 @@ class SiteInfo(Strict):
     )
     body_height_m: Annotated[float, Field(gt=0, le=3.0)] = 2.0
     evaluation: Evaluation = "peak"
-    grid_m: Annotated[float, Field(ge=0.05, le=10.0)] = 0.25
+    grid_m: Annotated[float, Field(ge=0.05, le=10.0, description="Map spacing [m], 0.05 to 10; with the "
+                                   "surfaces and emitters within the grid budget (see README).")] = 0.25
     notes: str = ""
 
 
@@ -418,6 +419,13 @@ class SiteRecord(Strict):
     work_positions: list[WorkPosition] = []
 
     @model_validator(mode="after")
+    def _within_grid_budget(self):
+        problem = grid_budget_problem(self, self.site.grid_m)
+        if problem:
+            raise ValueError(problem)
+        return self
+
+    @model_validator(mode="after")
     def _unique_names(self):
         problems = []
         for label, values in (
@@ -447,6 +455,62 @@ class SiteRecord(Strict):
                     f"gain {e.peak_gain_dbi:.1f} dBi from the {'aperture' if e.kind == 'dish' else 'beamwidths'}"
                 )
         return out
+
+
+# --- the grid budget ----------------------------------------------------------------------
+
+GRID_M_RANGE = (0.05, 10.0)
+"""Allowed map spacings [m]: 5 cm (finer than a person) to 10 m (a quick screen)."""
+
+HEIGHT_STEP_M = 0.2
+"""Vertical sampling of the body height above each surface point [m]."""
+
+MAX_CELLS_PER_SURFACE = 20_000_000
+"""Most map cells over one surface's bounding box (about 0.5 GB of map arrays)."""
+
+MAX_EVALUATIONS = 20_000_000_000
+"""Most point-emitter evaluations of one assessment: cells × heights × emitters. The
+benchmark roof runs about 10 million a second, so this is about half an hour."""
+
+
+def body_sample_count(body_height_m: float) -> int:
+    """Heights sampled over a standing person: 0 to the body height every 0.2 m at most."""
+    return max(2, math.ceil(body_height_m / HEIGHT_STEP_M) + 1)
+
+
+def grid_budget_problem(record: SiteRecord, grid_m: float) -> str | None:
+    """Say when an assessment at *grid_m* would exceed the grid budget, or None.
+
+    Counts the cells over each surface's bounding box (what the maps allocate), times the
+    heights sampled and the emitters, against :data:`MAX_CELLS_PER_SURFACE` and
+    :data:`MAX_EVALUATIONS`, and suggests the finest spacing that fits.
+    """
+    low, high = GRID_M_RANGE
+    if not (math.isfinite(grid_m) and low <= grid_m <= high):
+        return f"grid_m {grid_m!r} must be between {low:g} and {high:g} m"
+    heights = body_sample_count(record.site.body_height_m)
+    cells = []
+    for surface in record.surfaces:
+        xs = [p[0] for p in surface.outline]
+        ys = [p[1] for p in surface.outline]
+        nx = max(1, math.ceil((max(xs) - min(xs)) / grid_m))
+        ny = max(1, math.ceil((max(ys) - min(ys)) / grid_m))
+        cells.append((surface.name, nx * ny))
+    largest_name, largest = max(cells, key=lambda item: item[1])
+    evaluations = sum(c for _, c in cells) * heights * len(record.emitters)
+
+    def finer(count: float, budget: float) -> float:
+        return float(f"{grid_m * math.sqrt(count / budget) * 1.01:.2g}")
+
+    if largest > MAX_CELLS_PER_SURFACE:
+        return (f"grid_m {grid_m:g} m gives surface {largest_name!r} {largest:,} map cells, more than the "
+                f"{MAX_CELLS_PER_SURFACE:,} one surface may have; use grid_m {max(finer(largest, MAX_CELLS_PER_SURFACE), low):g} m "
+                "or more (or check the outline's units)")
+    if evaluations > MAX_EVALUATIONS:
+        return (f"grid_m {grid_m:g} m needs {evaluations:,} point-emitter evaluations ({heights} heights, "
+                f"{len(record.emitters)} emitters), more than the {MAX_EVALUATIONS:,} of the grid budget; use grid_m "
+                f"{max(finer(evaluations, MAX_EVALUATIONS), low):g} m or more")
+    return None
 
 
 # --- polygon helpers (plain Python: records are small) ------------------------------------

@@ -16,6 +16,7 @@ from typer.core import TyperGroup
 
 from exposure import __version__
 from exposure.errors import InputError
+from exposure.inputs import printable
 
 EXIT_INPUT = 2
 EXIT_INTERNAL = 1
@@ -38,7 +39,7 @@ COMMAND_MODULES = (
 def fail(lines: list[str] | str, code: int = EXIT_INPUT) -> typer.Exit:
     """Print one line per problem to stderr and return the ``Exit`` to raise."""
     for line in [lines] if isinstance(lines, str) else lines:
-        typer.echo(f"error: {line}", err=True)
+        typer.echo(f"error: {printable(line)}", err=True)
     return typer.Exit(code)
 
 
@@ -60,6 +61,15 @@ class _GuardedGroup(TyperGroup):
         except KeyboardInterrupt:
             typer.echo("interrupted", err=True)
             raise typer.Exit(130) from None
+        except OSError as exc:  # the environment: a full disk, a read-only folder, a name too long
+            if _debug(ctx):
+                raise
+            where = printable(str(exc.filename)) if exc.filename else "output"
+            raise fail(f"{where}: {exc.strerror or type(exc).__name__} (a problem of the file system, not of the input)") from None
+        except (RecursionError, MemoryError) as exc:
+            if _debug(ctx):
+                raise
+            raise fail(f"input too large or too deeply nested to process ({type(exc).__name__})") from None
         except Exception as exc:  # the last line of defence: no traceback for users
             if _debug(ctx):
                 raise
@@ -111,7 +121,16 @@ for _name in COMMAND_MODULES:
     import_module(f"exposure.cli.{_name}").register(app)
 
 
+def _terminate(signum, frame) -> None:
+    """SIGTERM (``kill``) stops a command as Ctrl-C does: the atomic writers remove their
+    temporary files and a report is written whole or not at all."""
+    raise KeyboardInterrupt
+
+
 def main() -> None:
     """Console-script entry point."""
+    import signal
+
+    signal.signal(signal.SIGTERM, _terminate)
     app(prog_name="exposure")
     sys.exit(0)

@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import math
+
 from enum import Enum
 from pathlib import Path
 from typing import Annotated
@@ -36,19 +38,27 @@ QuietOption = Annotated[bool, typer.Option("--quiet", "-q", help="No progress ba
 
 
 def check_grid(grid_m: float | None) -> None:
+    """Refuse a --grid-m outside the records' range before any file is read."""
     from exposure.errors import InputError
+    from exposure.records import GRID_M_RANGE
 
-    if grid_m is not None and not (0.05 <= grid_m <= 10.0):
-        raise InputError(f"--grid-m: {grid_m:g} m must be between 0.05 and 10 m")
+    low, high = GRID_M_RANGE
+    if grid_m is not None and not (math.isfinite(grid_m) and low <= grid_m <= high):
+        raise InputError(f"--grid-m: {grid_m:g} m must be between {low:g} and {high:g} m")
 
 
-def run_assessment(site_file: Path, standard, limits_file, grid_m, measure_above, quiet):
-    """Load and assess one site, with a progress bar on a terminal; returns (site, result)."""
+def run_assessment(site_file: Path, standard, limits_file, grid_m, measure_above, quiet, before=None):
+    """Load and assess one site, with a progress bar on a terminal; returns (site, result).
+
+    ``before(site)``, if given, runs after loading and before the assessment (output checks).
+    """
     from exposure.assessment import assess
     from exposure.loader import load_site
 
     check_grid(grid_m)
     site = load_site(site_file, standard=standard, limits_file=limits_file)
+    if before is not None:
+        before(site)
     with Progress(f"assessing {site.id}", quiet=quiet) as progress:
         result = assess(site, grid_m=grid_m, measure_above=measure_above, progress=progress)
     return site, result

@@ -17,7 +17,7 @@ def report(
         Path | None,
         typer.Option("--output", "-o", metavar="FILE.pdf",
                      help="The PDF to write (default: <site-id>.pdf in the current folder; a folder: inside it). "
-                     "The JSON goes beside it as <stem>.json."),
+                     "The JSON goes beside it as <stem>.json (<stem>.result.json where <stem>.json is the record)."),
     ] = None,
     standard: StandardOption = None,
     limits_file: LimitsFileOption = None,
@@ -26,16 +26,26 @@ def report(
     quiet: QuietOption = False,
 ) -> None:
     """Write the PDF compliance worksheet of a site and, beside it, the same JSON as `assess --json`."""
-    from exposure.io import atomic_write_json
-    from exposure.report import write_report
+    from exposure.io import atomic_write_bytes, json_bytes, write_pair
+    from exposure.report import render_pdf
 
     if output is not None and not output.is_dir():
-        output_path(output, "")  # a bad -o fails before the assessment, not after it
-    site, result = run_assessment(site_file, standard, limits_file, grid_m, measure_above, quiet)
-    pdf_path = output_path(output, site.id)
-    json_path = pdf_path.with_suffix(".json")
-    write_report(result, site, pdf_path)  # rendered in full before anything is written
-    atomic_write_json(json_path, result.to_json())
+        output_path(output, "")  # a bad -o fails before anything is read, not after the assessment
+    paths: list[Path] = []
+
+    def check_outputs(site) -> None:
+        pdf = output_path(output, site.id)
+        inputs = input_files(site)
+        beside = pdf.with_suffix(".json")
+        if any(_same_file(beside, source) for source in inputs):
+            beside = pdf.with_suffix(".result.json")  # the record itself is <stem>.json: never overwrite it
+        paths[:] = [pdf, beside]
+        check_output_paths(paths, inputs)
+
+    site, result = run_assessment(site_file, standard, limits_file, grid_m, measure_above, quiet, before=check_outputs)
+    pdf_path, json_path = paths
+    pdf = render_pdf(result, site)  # rendered in full before anything is written
+    write_pair(pdf_path, lambda path: atomic_write_bytes(path, pdf), json_path, json_bytes(result.to_json()))
     typer.echo(f"wrote {pdf_path}")
     typer.echo(f"wrote {json_path}")
     typer.echo(f"Verdict: {result.verdict}. {VERDICT_WORDS[result.verdict]}")
@@ -54,6 +64,71 @@ def output_path(output: Path | None, site_id: str) -> Path:
     if output.suffix.lower() != ".pdf":
         raise InputError(f"-o: {str(output)!r} must end in .pdf (the JSON is written beside it as .json)")
     return output
+
+
+def input_files(site) -> list[Path]:
+    """Every file an assessment read: the record, its limit table and its pattern files."""
+    files = [Path(site.path)]
+    table_path = getattr(site.table, "path", None)
+    if table_path:
+        files.append(Path(table_path))
+    for emitter in site.record.emitters:
+        if emitter.pattern_file:
+            files.append(Path(site.path).parent / emitter.pattern_file)
+    return files
+
+
+def _same_file(a: Path, b: Path) -> bool:
+    import os
+
+    try:
+        if a.exists() and b.exists():
+            return os.path.samefile(a, b)
+        return a.resolve() == b.resolve()
+    except OSError:
+        return False
+
+
+def _cannot_write_in(folder: Path) -> str | None:
+    """Why no file can be created in *folder* (a probe file, created and removed), or None."""
+    import os
+    import tempfile
+
+    try:
+        fd, probe = tempfile.mkstemp(prefix=".exposure-probe.", dir=folder)
+    except OSError as exc:
+        return exc.strerror or type(exc).__name__
+    os.close(fd)
+    os.unlink(probe)
+    return None
+
+
+def check_output_paths(outputs: list[Path], inputs: list[Path]) -> None:
+    """Refuse, before any computing, outputs that would overwrite an input or cannot be written."""
+    import os
+
+    from exposure.errors import InputError
+
+    problems = []
+    for out in outputs:
+        for source in inputs:
+            if _same_file(out, source):
+                problems.append(f"{out}: would overwrite the input {source}; choose another -o")
+        if len(out.name.encode("utf-8")) > 255:
+            problems.append(f"{out}: file name too long (at most 255 bytes)")
+        parent = out.parent
+        while not parent.exists() and parent != parent.parent:
+            parent = parent.parent
+        if not parent.is_dir():
+            problems.append(f"{out}: {parent} is a file, not a folder")
+        elif out.is_dir():
+            problems.append(f"{out}: is a folder")
+        else:
+            reason = _cannot_write_in(parent)
+            if reason:
+                problems.append(f"{out}: cannot write in {parent} ({reason})")
+    if problems:
+        raise InputError(list(dict.fromkeys(problems)))
 
 
 def register(app: typer.Typer) -> None:

@@ -224,12 +224,12 @@ def expand_inputs(inputs: Sequence[str | Path], exclude: Sequence[Path] = ()) ->
         text = str(item)
         path = Path(text)
         if path.is_dir():
-            found = sorted(p for p in path.iterdir() if p.suffix.lower() in SUFFIXES and p.is_file())
+            found = sorted(p for p in path.iterdir() if _record_candidate(p))
             found = [p for p in found if _resolved(p) not in skip]
             if not found:
                 raise InputError("no .toml or .json site records in this folder", text)
         elif not path.exists() and glob.has_magic(text):
-            found = sorted(Path(p) for p in glob.glob(text, recursive=True) if Path(p).is_file())
+            found = sorted(Path(p) for p in glob.glob(text, recursive=True) if _record_candidate(Path(p)))
             found = [p for p in found if _resolved(p) not in skip]
             if not found:
                 raise InputError("this pattern matches no site record", text)
@@ -248,8 +248,15 @@ def expand_inputs(inputs: Sequence[str | Path], exclude: Sequence[Path] = ()) ->
 def _resolved(path: Path) -> Path:
     try:
         return Path(path).resolve()
-    except OSError:
+    except (OSError, RuntimeError):  # RuntimeError: a loop of symbolic links
         return Path(os.path.abspath(path))
+
+
+def _record_candidate(path: Path) -> bool:
+    """A name a folder or pattern lists as a site record: a record's suffix and not a folder.
+    Dangling or looping links, pipes and devices are kept, so that each becomes a failed row
+    with its reason rather than vanishing from the summary."""
+    return path.suffix.lower() in SUFFIXES and not path.is_dir()
 
 
 # --- planning: decided in the client, in input order --------------------------------------
@@ -285,6 +292,8 @@ def plan(files: Sequence[Path], options: BatchOptions) -> list[SiteTask | SiteRo
         if options.resume:
             finished = _finished_row(file, options.out_dir / site.id, site.sha256, fingerprint, options.report)
             if finished is not None:
+                for name in (RESULT_NAME, REPORT_NAME):  # a killed earlier run's temporary files
+                    remove_leftovers(options.out_dir / site.id / name)
                 out.append(replace(finished, seconds=time.perf_counter() - start))
                 continue
         out.append(
@@ -728,6 +737,8 @@ def _checked(options: BatchOptions) -> BatchOptions:
     if options.limits_file is not None and not Path(options.limits_file).is_file():
         raise InputError("no such file", str(options.limits_file))
     out_dir.mkdir(parents=True, exist_ok=True)
+    for name in (SUMMARY_CSV, SUMMARY_JSON):  # temporary files of a killed earlier run
+        remove_leftovers(out_dir / name)
     return replace(options, out_dir=out_dir)
 
 

@@ -88,6 +88,8 @@ def read_document(path: str | Path) -> tuple[dict, bytes]:
             raise InputError(f"TOML syntax error: {exc}", src) from None
         except RecursionError:
             raise InputError("TOML nested too deeply to be a site record", src) from None
+        except ValueError as exc:  # e.g. an integer longer than Python's digit limit
+            raise InputError(f"TOML value out of range: {str(exc).split(';')[0]}", src) from None
     else:
         data = parse_json(text, src)
         if not isinstance(data, dict):

@@ -11,10 +11,12 @@ conversion into the models' ``Antenna`` lives here as :meth:`EmitterBase.to_ante
 from __future__ import annotations
 
 import math
+import unicodedata
 from typing import Annotated, Literal, Union
 
 from annotated_types import Len
 from pydantic import (
+    AfterValidator,
     BaseModel,
     ConfigDict,
     Field,
@@ -49,9 +51,49 @@ Positive = Annotated[float, Field(gt=0)]
 NonNegative = Annotated[float, Field(ge=0)]
 Coordinate = Annotated[float, Field(ge=-1e5, le=1e5)]
 Beamwidth = Annotated[float, Field(gt=0, le=360)]
+
+
+def _vertical_beamwidth(value: float) -> float:
+    if value > 180.0:
+        raise ValueError(f"a vertical half-power beamwidth is at most 180 deg (zenith to nadir), got {value:g}")
+    return value
+
+
+def _at_least_a_microwatt(value: float) -> float:
+    if value < 1e-6:
+        raise ValueError(f"{value:g} W is below 1 µW (-30 dBm), the smallest power a record takes")
+    return value
+
+
+VBeamwidth = Annotated[float, Field(gt=0, le=360, description="Vertical half-power beamwidth [deg], at most 180."),
+                       AfterValidator(_vertical_beamwidth)]
+Power = Annotated[float, Field(gt=0, le=1e7), AfterValidator(_at_least_a_microwatt)]
 Tilt = Annotated[float, Field(ge=-90, le=90)]
 Azimuth = Annotated[float, Field(ge=-360, le=360)]
-Name = Annotated[str, StringConstraints(strip_whitespace=True, min_length=1, max_length=200)]
+_BIDI_CONTROLS = frozenset("\u202a\u202b\u202c\u202d\u202e\u2066\u2067\u2068\u2069")
+
+
+def _no_control_characters(text: str, allowed: str = "") -> str:
+    """Refuse control characters (terminal escapes, bidirectional overrides): a name reaches
+    terminals, PDFs and file systems, and must read there as it was typed."""
+    for c in text:
+        if c in allowed:
+            continue
+        if unicodedata.category(c) == "Cc" or c in _BIDI_CONTROLS:
+            raise ValueError(f"control character U+{ord(c):04X} is not allowed in text")
+    return text
+
+
+def _text_with_lines(text: str) -> str:
+    return _no_control_characters(text, allowed="\n\t")
+
+
+Name = Annotated[
+    str, StringConstraints(strip_whitespace=True, min_length=1, max_length=200), AfterValidator(_no_control_characters)
+]
+FileName = Annotated[str, StringConstraints(min_length=1, max_length=1000), AfterValidator(_no_control_characters)]
+NOTES_MAX_CHARS = 2000
+"""Longest ``site.notes``: a paragraph of the worksheet, which must fit one page."""
 Identifier = Annotated[
     str, StringConstraints(pattern=r"^[a-z0-9_-]+$", min_length=1, max_length=80)
 ]
@@ -75,7 +117,7 @@ class SiteInfo(Strict):
     id: Identifier = Field(description="[a-z0-9_-]+ ; used for output file names")
     name: Name
     standard: Standard = Field("fcc", description="Default limit set.")
-    limits_file: str | None = Field(
+    limits_file: FileName | None = Field(
         None, description="A local code's limit table, relative to the site file; overrides standard."
     )
     ground_reflection: Reflection = Field(
@@ -85,7 +127,9 @@ class SiteInfo(Strict):
     evaluation: Evaluation = "peak"
     grid_m: Annotated[float, Field(ge=0.05, le=10.0, description="Map spacing [m], 0.05 to 10; with the "
                                    "surfaces and emitters within the grid budget (see README).")] = 0.25
-    notes: str = ""
+    notes: Annotated[str, StringConstraints(max_length=NOTES_MAX_CHARS), AfterValidator(_text_with_lines)] = Field(
+        "", description=f"Free text for the worksheet, at most {NOTES_MAX_CHARS} characters."
+    )
 
 
 class Surface(Strict):
@@ -123,18 +167,22 @@ class EmitterBase(Strict):
     id: EmitterId
     operator: Name
     frequency_mhz: Annotated[float, Field(ge=0.1, le=300_000, description="Carrier frequency [MHz], 0.1 MHz (the lowest edge of the built-in limit tables) to 300 GHz.")]
-    power_w: Positive | None = None
+    power_w: Power | None = Field(
+        None, description="Transmitter output per port [W], 1 µW (-30 dBm) to 10 MW (100 dBm), as power_dbm."
+    )
     power_dbm: Annotated[float, Field(ge=-30, le=100)] | None = None
     ports: Annotated[int, Field(ge=1, le=256)] = 1
     line_loss_db: Annotated[float, Field(ge=0, le=30)] = 0.0
     gain_dbi: Annotated[float, Field(ge=MIN_GAIN_DBI, le=MAX_GAIN_DBI)] | None = None
     gain_dbd: Annotated[float, Field(ge=MIN_GAIN_DBI - DBD_TO_DBI, le=MAX_GAIN_DBI - DBD_TO_DBI)] | None = None
-    eirp_w: Positive | None = Field(None, description="Instead of power, gain and line loss.")
+    eirp_w: Annotated[float, Field(gt=0, le=1e12), AfterValidator(_at_least_a_microwatt)] | None = Field(
+        None, description="Instead of power, gain and line loss [W], 1 µW to 1 TW (10 MW at 50 dBi)."
+    )
     x_m: Coordinate
     y_m: Coordinate
     z_m: Coordinate
     duty_factor: Annotated[float, Field(gt=0, le=1)] = 1.0
-    pattern_file: str | None = Field(
+    pattern_file: FileName | None = Field(
         None, description="CSV of tabulated cuts (plane,angle_deg,attenuation_db), relative to the site file."
     )
 
@@ -275,7 +323,7 @@ class _Directional(EmitterBase):
     mech_tilt_deg: Tilt = 0.0
     elec_tilt_deg: Tilt = 0.0
     h_beamwidth_deg: Beamwidth
-    v_beamwidth_deg: Beamwidth
+    v_beamwidth_deg: VBeamwidth
     front_to_back_db: Annotated[float, Field(ge=0, le=60)] = 25.0
     sidelobe_floor_db: Annotated[float, Field(ge=3, le=60)] = Field(
         DEFAULT_SIDELOBE_FLOOR_DB,
@@ -345,7 +393,7 @@ class OmniEmitter(EmitterBase):
     kind: Literal["omni"]
     mech_tilt_deg: Tilt = 0.0
     elec_tilt_deg: Tilt = 0.0
-    v_beamwidth_deg: Beamwidth
+    v_beamwidth_deg: VBeamwidth
     sidelobe_floor_db: Annotated[float, Field(ge=3, le=60)] = Field(
         DEFAULT_SIDELOBE_FLOOR_DB,
         description="Highest side lobe of the vertical pattern below the peak [dB] (not only the "

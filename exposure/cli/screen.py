@@ -103,16 +103,21 @@ def compute(o: _Options) -> dict[str, Any]:
     from exposure import aperture, field, screening
     from exposure.antenna import Antenna
     from exposure.limits import TIERS, load_standard
+    from exposure.records import MAX_GAIN_DBI, MIN_GAIN_DBI
     from exposure.units import linear_to_db, wavelength_m
 
     if o.frequency_mhz is None:
         raise InputError("--frequency-mhz is required")
     _check("--frequency-mhz", o.frequency_mhz)
+    # the plausibility ranges of a site record's emitter (exposure.records)
     _check("--eirp-w", o.eirp_w)
+    _check("--eirp-w", o.eirp_w, low=1e-6, high=1e12, low_inclusive=True)
     _check("--power-w", o.power_w)
+    _check("--power-w", o.power_w, low=1e-6, high=1e7, low_inclusive=True)
     if o.gain_dbi is not None and not math.isfinite(o.gain_dbi):
         raise InputError(f"--gain-dbi {o.gain_dbi!r}: must be a finite number")
-    _check("--line-loss-db", o.line_loss_db, low_inclusive=True)
+    _check("--gain-dbi", o.gain_dbi, low=MIN_GAIN_DBI, high=MAX_GAIN_DBI, low_inclusive=True)
+    _check("--line-loss-db", o.line_loss_db, low_inclusive=True, high=30.0)
     _check("--h-beamwidth-deg", o.h_beamwidth_deg, high=360.0)
     _check("--v-beamwidth-deg", o.v_beamwidth_deg, high=180.0)
     _check("--length-m", o.length_m)

@@ -46,7 +46,6 @@ from exposure.results import (
     SurfaceResult,
     WorkPositionResult,
 )
-from exposure.units import wavelength_m
 
 RESPONSIBILITY_SHARE = 0.05
 """A licensee shares responsibility where its emitter gives ≥ 5 % of its own limit in an

@@ -8,7 +8,6 @@ from __future__ import annotations
 
 import difflib
 import hashlib
-import json
 import tomllib
 from dataclasses import dataclass, field
 from pathlib import Path

@@ -289,3 +289,37 @@ def test_mutated_records_exit_0_or_2_naming_the_file_and_field(tmp_path, data):
         assert not out.exists() or not any(out.iterdir())
     else:
         sys.stdout.flush()
+
+
+# 9. scripts people type ----------------------------------------------------------------------------
+
+
+def test_cjk_hangul_and_emoji_names_reach_the_pdf(record, write_record, tmp_path):
+    """CJK and emoji names printed as blank boxes: now Han, kana and Hangul are set in the
+    bundled Droid Sans Fallback (embedded), the rest in DejaVu Sans or as a code point; a
+    general-purpose PDF reader (pypdf) reads the names back."""
+    from pypdf import PdfReader
+
+    record["site"]["name"] = "屋上テラス 옥상 😀 Crème"
+    record["surfaces"][0]["name"] = "屋上"
+    result = run("report", write_record(record), "-o", tmp_path / "r.pdf", "-q", "--grid-m", "1")
+    assert result.exit_code == 0, result.output
+    reader = PdfReader(tmp_path / "r.pdf")
+    fonts = set()
+    for page in reader.pages:
+        for font in (page.get("/Resources") or {}).get("/Font", {}).values():
+            fonts.add(str(font.get_object().get("/BaseFont")))
+    assert any("WorksheetFallback" in f or "Droid" in f for f in fonts), fonts
+    text = "".join(page.extract_text() for page in reader.pages)
+    assert "Crème" in text and "屋上" in text
+
+
+def test_markup_sets_each_script_in_a_font_that_has_it():
+    """Unit check of the fallback: DejaVu Sans for Latin, Droid Sans Fallback for CJK, code points else."""
+    from exposure.report.fonts import label, markup
+
+    assert markup("A&B") == "A&amp;B"
+    assert markup("屋上 A") == '<font name="WorksheetFallback">屋上</font> A'
+    assert markup("옥") == '<font name="WorksheetFallback">옥</font>'
+    assert markup("\U0001d504") == "[U+1D504]"  # a mathematical Fraktur letter neither font has
+    assert label("屋$") == "屋\\$"

@@ -105,7 +105,6 @@ def _cannot_write_in(folder: Path) -> str | None:
 
 def check_output_paths(outputs: list[Path], inputs: list[Path]) -> None:
     """Refuse, before any computing, outputs that would overwrite an input or cannot be written."""
-    import os
 
     from exposure.errors import InputError
 

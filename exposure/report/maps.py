@@ -41,8 +41,10 @@ ACCESS_LABEL = {"public": "public access", "occupational": "occupational (contro
 
 
 def _plain(value: str) -> str:
-    """Text for matplotlib as it is: a ``$`` would otherwise start mathtext."""
-    return str(value).replace("$", r"\$")
+    """Text for matplotlib as typed (:func:`exposure.report.fonts.label`)."""
+    from exposure.report.fonts import label
+
+    return label(value)
 
 
 def _new_figure(width_in: float, height_in: float):
@@ -388,7 +390,9 @@ def plan_map(
     """
     import matplotlib
 
-    with matplotlib.rc_context({"hatch.linewidth": 0.45, "font.family": "DejaVu Sans"}):
+    from exposure.report.fonts import matplotlib_rc
+
+    with matplotlib.rc_context({"hatch.linewidth": 0.45, **matplotlib_rc()}):
         return _plan_map(assessment, width_in, max_height_in, region, legend)
 
 
@@ -654,6 +658,16 @@ def section_figure(
         PNG, width and height [in], and facts for the caption (``exaggeration``,
         ``worst`` = (s, elevation, ratio) or None).
     """
+    import matplotlib
+
+    from exposure.report.fonts import matplotlib_rc
+
+    with matplotlib.rc_context(matplotlib_rc()):
+        return _section_figure(s_m, z_m, ratio, emitter=emitter, assessment=assessment, body_height_m=body_height_m,
+                               width_in=width_in, max_height_in=max_height_in)
+
+
+def _section_figure(s_m, z_m, ratio, *, emitter, assessment, body_height_m, width_in, max_height_in):
     from matplotlib.lines import Line2D
 
     s_m, z_m = np.asarray(s_m, dtype=float), np.asarray(z_m, dtype=float)

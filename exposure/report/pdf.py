@@ -16,13 +16,12 @@ import datetime as _dt
 import io
 from collections.abc import Callable
 from pathlib import Path
-from xml.sax.saxutils import escape
 
 from exposure import __version__
-from exposure.report import maps, text
+from exposure.report import fonts, maps, text
 from exposure.results import DIRECTIONS
 
-FONT = "WorksheetSans"
+FONT = fonts.FONT
 SECTION_HALF_LENGTH_RANGE_M = (8.0, 60.0)
 MAX_SECTIONS = 2
 
@@ -34,35 +33,16 @@ VERDICT_TINTS = {"compliant": "#eef5ef", "verify-by-measurement": "#fbf4e4", "mi
 
 
 def esc(value) -> str:
-    """Text for Paragraph markup: ``&``, ``<`` and ``>`` escaped, nothing interpreted."""
-    return escape(str(value))
+    """Text for Paragraph markup: ``&``, ``<`` and ``>`` escaped, nothing interpreted, and every
+    script set in a font that has it (:func:`exposure.report.fonts.markup`)."""
+    return fonts.markup(value)
 
 
 # --- fonts and styles ------------------------------------------------------------------
 
 
 def _register_fonts() -> None:
-    """DejaVu Sans (shipped with matplotlib): wide Unicode coverage for names in records."""
-    import matplotlib
-    from reportlab.lib.fonts import addMapping
-    from reportlab.pdfbase import pdfmetrics
-    from reportlab.pdfbase.ttfonts import TTFont
-
-    if FONT in pdfmetrics.getRegisteredFontNames():
-        return
-    folder = Path(matplotlib.get_data_path()) / "fonts" / "ttf"
-    faces = {
-        FONT: "DejaVuSans.ttf",
-        f"{FONT}-Bold": "DejaVuSans-Bold.ttf",
-        f"{FONT}-Oblique": "DejaVuSans-Oblique.ttf",
-        f"{FONT}-BoldOblique": "DejaVuSans-BoldOblique.ttf",
-    }
-    for name, file in faces.items():
-        pdfmetrics.registerFont(TTFont(name, str(folder / file)))
-    addMapping(FONT, 0, 0, FONT)
-    addMapping(FONT, 1, 0, f"{FONT}-Bold")
-    addMapping(FONT, 0, 1, f"{FONT}-Oblique")
-    addMapping(FONT, 1, 1, f"{FONT}-BoldOblique")
+    fonts.register_fonts()
 
 
 def _styles() -> dict:

@@ -64,7 +64,7 @@ def _half_power_width(angles: np.ndarray, gain_db: np.ndarray, periodic: bool) -
 
 def _highest_side_lobe(angles: np.ndarray, gain_db: np.ndarray) -> float | None:
     front = np.abs(angles) <= 90.0
-    a, g = angles[front], gain_db[front]
+    g = gain_db[front]
     i = int(np.argmax(g))
     lo = i
     while lo > 0 and g[lo - 1] <= g[lo]:

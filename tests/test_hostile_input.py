@@ -323,3 +323,20 @@ def test_markup_sets_each_script_in_a_font_that_has_it():
     assert markup("옥") == '<font name="WorksheetFallback">옥</font>'
     assert markup("\U0001d504") == "[U+1D504]"  # a mathematical Fraktur letter neither font has
     assert label("屋$") == "屋\\$"
+
+
+def test_full_disk_while_writing_is_exit_2_and_leaves_nothing(record, write_record, tmp_path, monkeypatch):
+    """A full disk during the write (simulated: fsync fails with ENOSPC) is a problem of the
+    environment: exit 2 with one line, and neither the PDF nor its JSON nor a temporary file."""
+    import errno
+
+    import exposure.io
+
+    def full(fd):
+        raise OSError(errno.ENOSPC, "No space left on device")
+
+    monkeypatch.setattr(exposure.io.os, "fsync", full)
+    out = tmp_path / "out"
+    result = run("report", write_record(record), "-o", out / "r.pdf", "-q", "--grid-m", "1")
+    refused(result, "No space left on device")
+    assert not out.exists() or list(out.iterdir()) == []

@@ -32,7 +32,8 @@ from exposure.field import (
 )
 from exposure.limits import TIERS
 from exposure.loader import LoadedSite
-from exposure.records import ACCESS_TIER, body_sample_count, grid_budget_problem, polygon_area
+from exposure.geometry import area_m2, contains, distance_xy, nearest_inside
+from exposure.records import ACCESS_TIER, body_sample_count, grid_budget_problem
 from exposure.results import (
     DIRECTIONS,
     SEVERITIES,
@@ -140,35 +141,23 @@ def probe(site: LoadedSite, point_m: Sequence[float]) -> dict:
 # --- surfaces --------------------------------------------------------------------------------
 
 
-def points_in_polygon(x: np.ndarray, y: np.ndarray, outline: Sequence[Sequence[float]]) -> np.ndarray:
-    """Even-odd rule point-in-polygon test, vectorised over points."""
-    inside = np.zeros(np.shape(x), dtype=bool)
-    n = len(outline)
-    for k in range(n):
-        x1, y1 = outline[k]
-        x2, y2 = outline[(k + 1) % n]
-        if y1 == y2:
-            continue
-        crosses = (y1 > y) != (y2 > y)
-        x_at = x1 + (y - y1) * (x2 - x1) / (y2 - y1)
-        inside ^= crosses & (x < x_at)
-    return inside
+def surface_cells(surface, grid_m: float) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Cell-centre axes over the surface's bounding box and the mask of centres on it
+    (inside the outline, outside every hole; :mod:`exposure.geometry`).
 
-
-def surface_cells(outline: Sequence[Sequence[float]], grid_m: float) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """Cell-centre axes over the outline's bounding box and the mask of centres inside it.
-
-    A surface smaller than one cell still gets its centroid-nearest cell.
+    A surface smaller than one cell still gets the cell of a point on it.
     """
-    xs, ys = np.array([p[0] for p in outline]), np.array([p[1] for p in outline])
-    nx = max(1, math.ceil((xs.max() - xs.min()) / grid_m))
-    ny = max(1, math.ceil((ys.max() - ys.min()) / grid_m))
-    x = xs.min() + (np.arange(nx) + 0.5) * (xs.max() - xs.min()) / nx
-    y = ys.min() + (np.arange(ny) + 0.5) * (ys.max() - ys.min()) / ny
+    polygon = surface.polygon
+    x0, y0, x1, y1 = polygon.bounds
+    nx = max(1, math.ceil((x1 - x0) / grid_m))
+    ny = max(1, math.ceil((y1 - y0) / grid_m))
+    x = x0 + (np.arange(nx) + 0.5) * (x1 - x0) / nx
+    y = y0 + (np.arange(ny) + 0.5) * (y1 - y0) / ny
     gx, gy = np.meshgrid(x, y)
-    inside = points_in_polygon(gx, gy, outline)
+    inside = contains(polygon, gx, gy)
     if not inside.any():
-        inside[ny // 2, nx // 2] = True
+        px, py = polygon.representative_point().coords[0]
+        inside[int(np.argmin(np.abs(y - py))), int(np.argmin(np.abs(x - px)))] = True
     return x, y, inside
 
 
@@ -277,7 +266,7 @@ def hot_spots(surface, antennas: Sequence[Antenna], body_height_m: float) -> tup
     surface. Evaluated besides the grid so that a narrow zone in front of or below an
     antenna is never lost between cell centres (conservative).
     """
-    outline = surface.outline
+    polygon = surface.polygon
     top = surface.elevation_m + body_height_m
     xs, ys = [], []
     steps = np.geomspace(HOT_SPOT_FROM_M, 20.0, 48)
@@ -288,35 +277,16 @@ def hot_spots(surface, antennas: Sequence[Antenna], body_height_m: float) -> tup
         ys.extend(ay + steps * math.cos(az))
         half = 0.5 * ((antenna.diameter_m if antenna.kind == "dish" else antenna.length_m) or 0.0)
         if antenna.position_m[2] - half > top:
-            nx, ny = _nearest_inside(ax, ay, outline)
+            nx, ny = nearest_inside(polygon, ax, ay)
             xs.append(nx)
             ys.append(ny)
     x, y = np.array(xs), np.array(ys)
-    keep = points_in_polygon(x, y, outline)
+    keep = contains(polygon, x, y)
     return x[keep], y[keep]
 
 
-def _nearest_inside(px: float, py: float, outline) -> tuple[float, float]:
-    """The point of the polygon nearest to (px, py), moved 1 mm inside when on an edge."""
-    if points_in_polygon(np.array([px]), np.array([py]), outline)[0]:
-        return px, py
-    best = None
-    for k in range(len(outline)):
-        (ax, ay), (bx, by) = outline[k], outline[(k + 1) % len(outline)]
-        dx, dy = bx - ax, by - ay
-        t = max(0.0, min(1.0, ((px - ax) * dx + (py - ay) * dy) / (dx * dx + dy * dy)))
-        qx, qy = ax + t * dx, ay + t * dy
-        d = math.hypot(px - qx, py - qy)
-        if best is None or d < best[0]:
-            best = (d, qx, qy)
-    _, qx, qy = best
-    cx, cy = np.mean([p[0] for p in outline]), np.mean([p[1] for p in outline])
-    norm = math.hypot(cx - qx, cy - qy) or 1.0
-    return qx + 1e-3 * (cx - qx) / norm, qy + 1e-3 * (cy - qy) / norm
-
-
 def _evaluate_surface(site, surface, limits: SiteLimits, offsets, grid_m, progress, done_total):
-    x, y, inside = surface_cells(surface.outline, grid_m)
+    x, y, inside = surface_cells(surface, grid_m)
     cell_index = np.flatnonzero(inside.ravel())
     gx, gy = np.meshgrid(x, y)
     acc = _SurfaceAccumulator.new(len(site.antennas))
@@ -393,11 +363,12 @@ def _surface_result(site, surface, grid, cells: _Columns, spots: _Columns, acc) 
         access=surface.access,
         elevation_m=surface.elevation_m,
         outline=tuple((float(p[0]), float(p[1])) for p in surface.outline),
+        holes=tuple(tuple((float(p[0]), float(p[1])) for p in hole) for hole in surface.holes),
         governing_tier=governing,
         max_ratio=max_ratio,
         max_at_m=max_at,
         area_above_m2=area_above,
-        area_m2=abs(polygon_area(surface.outline)),
+        area_m2=area_m2(surface.polygon),
         compliant=compliant,
         exceedance_regions=regions,
         responsible=responsible,
@@ -495,23 +466,12 @@ def _work_position(site, position, limits: SiteLimits, offsets) -> WorkPositionR
 # --- model-validity checks -------------------------------------------------------------------
 
 
-def distance_to_prism(point: Sequence[float], outline, z0: float, z1: float) -> float:
-    """Distance [m] from a point to the volume over a polygon between heights z0 and z1."""
+def distance_to_prism(point: Sequence[float], surface, z0: float, z1: float) -> float:
+    """Distance [m] from a point to the volume over a surface (holes excluded) between heights z0 and z1."""
     px, py, pz = point
-    if points_in_polygon(np.array([px]), np.array([py]), outline)[0]:
-        horizontal = 0.0
-    else:
-        horizontal = min(_segment_distance(px, py, outline[k], outline[(k + 1) % len(outline)]) for k in range(len(outline)))
-    vertical = max(z0 - pz, 0.0, pz - z1)
+    horizontal = distance_xy(surface.polygon, px, py)
+    vertical = 0.0 if z0 <= pz <= z1 else min(abs(pz - z0), abs(pz - z1))
     return math.hypot(horizontal, vertical)
-
-
-def _segment_distance(px, py, a, b) -> float:
-    ax, ay = a
-    bx, by = b
-    dx, dy = bx - ax, by - ay
-    t = 0.0 if dx == dy == 0 else max(0.0, min(1.0, ((px - ax) * dx + (py - ay) * dy) / (dx * dx + dy * dy)))
-    return math.hypot(px - ax - t * dx, py - ay - t * dy)
 
 
 def _validity_flags(site: LoadedSite, body_height: float) -> list[Flag]:
@@ -523,7 +483,7 @@ def _validity_flags(site: LoadedSite, body_height: float) -> list[Flag]:
         half_extent = 0.5 * (antenna.diameter_m if antenna.kind == "dish" else (antenna.length_m or 0.0))
         near = [
             s.name for s in accessible
-            if distance_to_prism(antenna.position_m, s.outline, s.elevation_m, s.elevation_m + body_height)
+            if distance_to_prism(antenna.position_m, s, s.elevation_m, s.elevation_m + body_height)
             - half_extent < reach
         ]
         if near:
@@ -573,7 +533,7 @@ def _dish_beam_crossing(antenna: Antenna, surfaces, body_height: float) -> str |
     for t in np.arange(d, r_ff + d / 4, d / 4):
         p = origin + t * axis
         for s in surfaces:
-            if distance_to_prism(p, s.outline, s.elevation_m, s.elevation_m + body_height) < d / 2:
+            if distance_to_prism(p, s, s.elevation_m, s.elevation_m + body_height) < d / 2:
                 return s.name
     return None
 
@@ -624,7 +584,7 @@ def assess(
 
     total_points = 0
     for surface in site.record.surfaces:
-        _, _, inside = surface_cells(surface.outline, grid_m)
+        _, _, inside = surface_cells(surface, grid_m)
         total_points += int(inside.sum()) * len(offsets) * len(site.antennas)
     done_total = [0, total_points]
     surfaces = []

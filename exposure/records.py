@@ -26,6 +26,7 @@ from pydantic import (
 )
 
 from exposure.antenna import DEFAULT_SIDELOBE_FLOOR_DB, Antenna, PatternCuts
+from exposure.geometry import distance_xy, overlap_m2, polygon_problem, ring_problem, surface_polygon
 from exposure.units import DBD_TO_DBI, ERP_TO_EIRP, db_to_linear, dbm_to_watts, wavelength_m
 
 SCHEMA_VERSION = 1
@@ -133,23 +134,45 @@ class SiteInfo(Strict):
 
 
 class Surface(Strict):
-    """A walking surface where people can stand."""
+    """A walking surface where people can stand: an outline, less any holes."""
 
     name: Name
     access: Access
     elevation_m: Coordinate = 0.0
     outline: Annotated[list[Point2], Len(3, 500)]
+    holes: Annotated[list[Annotated[list[Point2], Len(3, 500)]], Len(0, 100)] = Field(
+        default_factory=list,
+        description="Areas inside the outline nobody stands on (a penthouse, plant), each a polygon [m].",
+    )
 
     @field_validator("outline")
     @classmethod
-    def _simple_polygon(cls, outline: list[list[float]]) -> list[list[float]]:
-        crossing = first_self_intersection(outline)
-        if crossing is not None:
-            i, j = crossing
-            raise ValueError(f"outline crosses itself (edge {i} meets edge {j})")
-        if abs(polygon_area(outline)) < 1e-6:
-            raise ValueError("outline encloses no area")
+    def _simple_outline(cls, outline: list[list[float]]) -> list[list[float]]:
+        problem = ring_problem(outline)
+        if problem:
+            raise ValueError(problem.removeprefix("outline "))
         return outline
+
+    @model_validator(mode="after")
+    def _simple_polygon(self):
+        problem = polygon_problem(self.outline, self.holes)
+        if problem:
+            raise ValueError(problem)
+        return self
+
+    @property
+    def polygon(self):
+        """The surface as a shapely polygon with its holes (:mod:`exposure.geometry`)."""
+        return surface_polygon(self.outline, self.holes)
+
+
+class AccessPoint(Strict):
+    """A way onto a surface (a door, hatch or ladder): where signs for its zones go."""
+
+    name: Name
+    surface: Name
+    x_m: Coordinate
+    y_m: Coordinate
 
 
 class WorkPosition(Strict):
@@ -465,13 +488,7 @@ class SiteRecord(Strict):
     surfaces: Annotated[list[Surface], Len(1, 200)]
     emitters: Annotated[list[Emitter], Len(1, 500)]
     work_positions: list[WorkPosition] = []
-
-    @model_validator(mode="after")
-    def _within_grid_budget(self):
-        problem = grid_budget_problem(self, self.site.grid_m)
-        if problem:
-            raise ValueError(problem)
-        return self
+    access_points: list[AccessPoint] = []
 
     @model_validator(mode="after")
     def _unique_names(self):
@@ -480,6 +497,7 @@ class SiteRecord(Strict):
             ("emitter id", [e.id for e in self.emitters]),
             ("surface name", [s.name for s in self.surfaces]),
             ("work position name", [w.name for w in self.work_positions]),
+            ("access point name", [a.name for a in self.access_points]),
         ):
             seen: set[str] = set()
             for v in values:
@@ -488,6 +506,48 @@ class SiteRecord(Strict):
                 seen.add(v)
         if problems:
             raise ValueError("; ".join(problems))
+        return self
+
+    @model_validator(mode="after")
+    def _surfaces_do_not_overlap(self):
+        """Two surfaces at one elevation may touch, or one may lie in a hole of the other; if
+        they overlap, the same people would be counted on both (and judged twice)."""
+        problems = []
+        polygons = [s.polygon for s in self.surfaces]
+        for i, a in enumerate(self.surfaces):
+            for j in range(i + 1, len(self.surfaces)):
+                b = self.surfaces[j]
+                if a.elevation_m != b.elevation_m:
+                    continue
+                shared = overlap_m2(polygons[i], polygons[j])
+                if shared > 1e-6:
+                    problems.append(
+                        f"surfaces[{i}] {a.name!r} and surfaces[{j}] {b.name!r} overlap by {shared:.3g} m² at "
+                        f"elevation {a.elevation_m:g} m; make one a hole of the other, or give them different elevations"
+                    )
+        if problems:
+            raise ValueError("; ".join(problems))
+        return self
+
+    @model_validator(mode="after")
+    def _access_points_on_their_surfaces(self):
+        names = {s.name: s for s in self.surfaces}
+        problems = []
+        for i, point in enumerate(self.access_points):
+            surface = names.get(point.surface)
+            if surface is None:
+                problems.append(f"access_points[{i}].surface {point.surface!r} is not a surface of this site")
+            elif distance_xy(surface.polygon, point.x_m, point.y_m) > 0.5:
+                problems.append(f"access_points[{i}] ({point.name!r}) is more than 0.5 m from surface {point.surface!r}")
+        if problems:
+            raise ValueError("; ".join(problems))
+        return self
+
+    @model_validator(mode="after")
+    def _within_grid_budget(self):
+        problem = grid_budget_problem(self, self.site.grid_m)
+        if problem:
+            raise ValueError(problem)
         return self
 
     def warnings(self) -> list[str]:
@@ -559,50 +619,6 @@ def grid_budget_problem(record: SiteRecord, grid_m: float) -> str | None:
                 f"{len(record.emitters)} emitters), more than the {MAX_EVALUATIONS:,} of the grid budget; use grid_m "
                 f"{max(finer(evaluations, MAX_EVALUATIONS), low):g} m or more")
     return None
-
-
-# --- polygon helpers (plain Python: records are small) ------------------------------------
-
-
-def polygon_area(outline) -> float:
-    """Signed area of a polygon [m²] (shoelace formula), positive anticlockwise."""
-    n = len(outline)
-    return 0.5 * sum(
-        outline[i][0] * outline[(i + 1) % n][1] - outline[(i + 1) % n][0] * outline[i][1]
-        for i in range(n)
-    )
-
-
-def first_self_intersection(outline) -> tuple[int, int] | None:
-    """The first pair of non-adjacent edges that touch or cross, or None."""
-    n = len(outline)
-    edges = [(outline[i], outline[(i + 1) % n]) for i in range(n)]
-    for i in range(n):
-        for j in range(i + 1, n):
-            if j == i + 1 or (i == 0 and j == n - 1):
-                continue  # neighbours share a vertex by construction
-            if _segments_touch(*edges[i], *edges[j]):
-                return i, j
-    return None
-
-
-def _segments_touch(p1, p2, q1, q2) -> bool:
-    def orient(a, b, c) -> float:
-        return (b[0] - a[0]) * (c[1] - a[1]) - (b[1] - a[1]) * (c[0] - a[0])
-
-    def on_segment(a, b, c) -> bool:
-        return min(a[0], b[0]) <= c[0] <= max(a[0], b[0]) and min(a[1], b[1]) <= c[1] <= max(a[1], b[1])
-
-    d1, d2 = orient(q1, q2, p1), orient(q1, q2, p2)
-    d3, d4 = orient(p1, p2, q1), orient(p1, p2, q2)
-    if ((d1 > 0) != (d2 > 0)) and ((d3 > 0) != (d4 > 0)) and d1 and d2 and d3 and d4:
-        return True
-    return (
-        (d1 == 0 and on_segment(q1, q2, p1))
-        or (d2 == 0 and on_segment(q1, q2, p2))
-        or (d3 == 0 and on_segment(p1, p2, q1))
-        or (d4 == 0 and on_segment(p1, p2, q2))
-    )
 
 
 def json_schema() -> dict:

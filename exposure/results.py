@@ -152,6 +152,7 @@ class SurfaceResult:
     responsible: dict[str, list[str]]  # tier -> emitter ids with >= 5 % of their limit where exceeded
     headroom_factor: float | None  # power scale of every emitter before the governing ratio reaches 1
     element_zone_area_m2: float = 0.0  # where a standing person reaches an emitter's element zone
+    holes: tuple[tuple[tuple[float, float], ...], ...] = ()  # areas inside the outline nobody stands on
     grid: SurfaceGrid | None = field(default=None, compare=False, repr=False)
 
     def to_json(self) -> dict:

@@ -26,13 +26,13 @@ from exposure.field import (
     boresight_distance_to_limit,
     element_zone,
     element_zone_distance_m,
-    structure_distance,
     model_for,
     power_density,
+    structure_distance,
 )
+from exposure.geometry import area_m2, contains, distance_xy, nearest_inside
 from exposure.limits import TIERS
 from exposure.loader import LoadedSite
-from exposure.geometry import area_m2, contains, distance_xy, nearest_inside
 from exposure.records import ACCESS_TIER, body_sample_count, grid_budget_problem
 from exposure.results import (
     DIRECTIONS,
@@ -47,6 +47,7 @@ from exposure.results import (
     SurfaceResult,
     WorkPositionResult,
 )
+from exposure.zones import signs_for, zone_polygons, zones_of_surface
 
 RESPONSIBILITY_SHARE = 0.05
 """A licensee shares responsibility where its emitter gives ≥ 5 % of its own limit in an
@@ -303,6 +304,43 @@ def _evaluate_surface(site, surface, limits: SiteLimits, offsets, grid_m, progre
     spots_xy = hot_spots(surface, site.antennas, site.record.site.body_height_m)
     spots = _evaluate_columns(site, surface, limits, offsets, *spots_xy, acc)
     return grid, cells, spots, acc
+
+
+def _surface_zones(site, surface, grid, cells: _Columns, spots: _Columns, limits: SiteLimits, offsets, grid_m):
+    """The surface's zones (:mod:`exposure.zones`): polygons from the map, then each emitter's
+    share of its own limit evaluated again at the cells inside them and at the hot spots above
+    the public limit (only there)."""
+    polygon = surface.polygon
+    outer = zone_polygons(grid.x_m, grid.y_m, grid.ratio["general_public"], 1.0, polygon)
+    inside = np.zeros(len(cells.x), dtype=bool)
+    for p in outer:
+        inside |= contains(p, cells.x, cells.y)
+    hot = spots.ratio["general_public"] > 1.0
+    if not inside.any() and not hot.any():
+        return []
+    x = np.concatenate([cells.x[inside], spots.x[hot]])
+    y = np.concatenate([cells.y[inside], spots.y[hot]])
+    evaluation = site.record.site.evaluation
+    n_e = len(site.antennas)
+    places: dict = {"x": x, "y": y}
+    for tier in TIERS:
+        places[tier] = {
+            "total": np.concatenate([cells.ratio[tier][inside], spots.ratio[tier][hot]]),
+            "z": np.concatenate([cells.at_z[tier][inside], spots.at_z[tier][hot]]),
+            "shares": np.empty((n_e, len(x))),
+        }
+    chunk = max(1, POINT_BUDGET // max(1, n_e * len(offsets)))
+    for start in range(0, len(x), chunk):
+        sl = slice(start, start + chunk)
+        points = np.empty((len(x[sl]), len(offsets), 3))
+        points[..., 0] = x[sl, None]
+        points[..., 1] = y[sl, None]
+        points[..., 2] = surface.elevation_m + offsets[None, :]
+        density = emitter_power_density(site, points)  # (n_e, n_places, n_h)
+        for tier in TIERS:
+            places[tier]["shares"][:, sl] = reduce_over_height(density * limits.inverse[tier][:, None, None], evaluation)
+    return zones_of_surface(surface.name, polygon, grid, places, [a.id for a in site.antennas],
+                            [e.operator for e in site.record.emitters], grid_m)
 
 
 def _update_headroom(headroom, ratio, total, reduced, evaluation) -> None:
@@ -588,9 +626,13 @@ def assess(
         total_points += int(inside.sum()) * len(offsets) * len(site.antennas)
     done_total = [0, total_points]
     surfaces = []
+    zones = []
     for surface in site.record.surfaces:
         grid, cells, spots, acc = _evaluate_surface(site, surface, limits, offsets, grid_m, progress, done_total)
         surfaces.append((_surface_result(site, surface, grid, cells, spots, acc), acc))
+        if surface.access != "none":
+            zones.extend(_surface_zones(site, surface, grid, cells, spots, limits, offsets, grid_m))
+    signs = signs_for(zones, site.record.access_points, {s.name: s.elevation_m for s in site.record.surfaces})
 
     public_headroom = np.full(len(site.antennas), np.inf)
     for result, acc in surfaces:
@@ -658,6 +700,8 @@ def assess(
         verdict=VERDICT_OF_SEVERITY[SEVERITIES[worst]],
         assumptions=tuple(_assumptions(site, grid_m, offsets, factor)),
         operators=operators,
+        zones=tuple(zones),
+        signs=tuple(signs),
     )
 
 

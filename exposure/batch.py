@@ -50,7 +50,13 @@ from typing import Literal
 
 from exposure import __version__
 from exposure.errors import InputError
-from exposure.io import atomic_write_bytes, atomic_write_json, json_bytes, remove_leftovers, write_pair
+from exposure.io import (
+    atomic_write_bytes,
+    atomic_write_json,
+    json_bytes,
+    remove_leftovers,
+    write_pair,
+)
 from exposure.limits import TIERS
 from exposure.loader import SUFFIXES
 from exposure.records import GRID_M_RANGE
@@ -398,7 +404,9 @@ def _assess_and_write(task: SiteTask) -> dict:
 
     folder = Path(task.out_dir) / site.id
     if task.report:
-        from exposure.report import write_report  # renders in full, then writes atomically
+        from exposure.report import (
+            write_report,  # renders in full, then writes atomically
+        )
 
         write_pair(folder / REPORT_NAME, lambda path: write_report(assessment, site, path),
                    folder / RESULT_NAME, json_bytes(result))

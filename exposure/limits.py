@@ -40,7 +40,14 @@ from importlib import resources
 from pathlib import Path
 from typing import Annotated, Any, Literal, get_args
 
-from pydantic import BaseModel, ConfigDict, Field, FiniteFloat, ValidationError, model_validator
+from pydantic import (
+    BaseModel,
+    ConfigDict,
+    Field,
+    FiniteFloat,
+    ValidationError,
+    model_validator,
+)
 
 from exposure.errors import InputError, OutOfRangeError, UnknownKeyError
 from exposure.units import FREE_SPACE_IMPEDANCE

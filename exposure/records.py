@@ -26,8 +26,20 @@ from pydantic import (
 )
 
 from exposure.antenna import DEFAULT_SIDELOBE_FLOOR_DB, Antenna, PatternCuts
-from exposure.geometry import distance_xy, overlap_m2, polygon_problem, ring_problem, surface_polygon
-from exposure.units import DBD_TO_DBI, ERP_TO_EIRP, db_to_linear, dbm_to_watts, wavelength_m
+from exposure.geometry import (
+    distance_xy,
+    overlap_m2,
+    polygon_problem,
+    ring_problem,
+    surface_polygon,
+)
+from exposure.units import (
+    DBD_TO_DBI,
+    ERP_TO_EIRP,
+    db_to_linear,
+    dbm_to_watts,
+    wavelength_m,
+)
 
 SCHEMA_VERSION = 1
 

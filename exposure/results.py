@@ -228,6 +228,8 @@ class Assessment:
     verdict: Verdict
     assumptions: tuple[Assumption, ...]
     operators: dict[str, list[str]]  # operator -> emitter ids
+    zones: tuple = ()  # exposure.zones.Zone, per surface and category
+    signs: tuple = ()  # exposure.zones.Sign
 
     def to_json(self) -> dict:
         return {
@@ -242,6 +244,8 @@ class Assessment:
             "emitters": [e.to_json() for e in self.emitters],
             "surfaces": [s.to_json() for s in self.surfaces],
             "work_positions": [w.to_json() for w in self.work_positions],
+            "zones": [z.to_json() for z in self.zones],
+            "signs": [s.to_json() for s in self.signs],
             "flags": [f.to_json() for f in self.flags],
             "verdict": self.verdict,
             "assumptions": [a.to_json() for a in self.assumptions],

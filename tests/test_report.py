@@ -241,7 +241,9 @@ def test_public_exceedance_states_mitigation(exceedance):
     assert responsible
     operators = sorted({result.emitter(i).operator for i in responsible})
     assert f"{', '.join(responsible)} {'; '.join(operators)}" in text
-    assert "Needed: Terrace <i>T</i>" in text  # the CAUTION sign at the public zone's edge
+    # the published rule (47 CFR 1.1307(b), IEEE C95.7): a zone above the public limit but within the
+    # occupational one is category 2, signed NOTICE (this test said CAUTION before the rules issue)
+    assert "2 NOTICE Terrace <i>T</i>" in text
     assert f"power to {fmt.number(terrace.headroom_factor, 2)} × its present value" in text
 
 

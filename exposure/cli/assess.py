@@ -3,7 +3,6 @@
 from __future__ import annotations
 
 import math
-
 from enum import Enum
 from pathlib import Path
 from typing import Annotated

@@ -78,7 +78,6 @@ def batch(
     same path on every worker; this process writes the summary.
     """
     from exposure.batch import BatchOptions, expand_inputs, make_runner, run_batch
-
     from exposure.cli.app import _debug
 
     out_dir = Path(out_dir)

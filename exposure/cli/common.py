@@ -79,7 +79,8 @@ class Progress:
 
     def __enter__(self) -> Progress:
         if self.enabled:
-            from rich.progress import BarColumn, Progress as Bar, TextColumn, TimeRemainingColumn
+            from rich.progress import BarColumn, TextColumn, TimeRemainingColumn
+            from rich.progress import Progress as Bar
 
             self._bar = Bar(TextColumn("{task.description}"), BarColumn(), TextColumn("{task.percentage:>3.0f}%"),
                             TimeRemainingColumn(), console=console(stderr=True), transient=True)

@@ -8,7 +8,14 @@ from typing import Annotated
 
 import typer
 
-from exposure.cli.common import JsonOption, LimitsFileOption, StandardOption, console, fmt, print_json
+from exposure.cli.common import (
+    JsonOption,
+    LimitsFileOption,
+    StandardOption,
+    console,
+    fmt,
+    print_json,
+)
 
 
 def parse_point(text: str) -> tuple[float, float, float]:

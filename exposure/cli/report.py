@@ -7,8 +7,18 @@ from typing import Annotated
 
 import typer
 
-from exposure.cli.assess import GridOption, MeasureAboveOption, QuietOption, run_assessment
-from exposure.cli.common import VERDICT_WORDS, LimitsFileOption, StandardOption, print_cautions
+from exposure.cli.assess import (
+    GridOption,
+    MeasureAboveOption,
+    QuietOption,
+    run_assessment,
+)
+from exposure.cli.common import (
+    VERDICT_WORDS,
+    LimitsFileOption,
+    StandardOption,
+    print_cautions,
+)
 
 
 def report(

@@ -16,8 +16,8 @@ from typing import Annotated, Any
 
 import typer
 
-from exposure.errors import InputError, UnknownKeyError
 from exposure.cli.common import fmt
+from exposure.errors import InputError, UnknownKeyError
 
 SCREEN_MODELS = ("auto", "spherical", "cylindrical", "synthetic", "aperture", "endfire")
 REFLECTIONS = ("none", "typical", "full")

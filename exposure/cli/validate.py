@@ -7,7 +7,14 @@ from typing import Annotated
 
 import typer
 
-from exposure.cli.common import JsonOption, LimitsFileOption, StandardOption, console, fmt, print_json
+from exposure.cli.common import (
+    JsonOption,
+    LimitsFileOption,
+    StandardOption,
+    console,
+    fmt,
+    print_json,
+)
 
 
 def validate(
@@ -22,10 +29,9 @@ def validate(
     ] = False,
 ) -> None:
     """Check site records; print each emitter with its EIRP and ERP, and any warnings."""
+    from exposure.cli.app import fail
     from exposure.errors import InputError
     from exposure.loader import load_site
-
-    from exposure.cli.app import fail
 
     failed: list[str] = []
     summaries = []

@@ -112,8 +112,12 @@ def label(value) -> str:
 
 def matplotlib_rc() -> dict:
     """rcParams for the maps: DejaVu Sans, then Droid Sans Fallback for what it lacks."""
+    import logging
+
     from matplotlib import font_manager
 
+    # the fallback has no bold face; matplotlib would log that for every bold label
+    logging.getLogger("matplotlib.font_manager").setLevel(logging.ERROR)
     if FALLBACK_FAMILY not in {f.name for f in font_manager.fontManager.ttflist}:
         font_manager.fontManager.addfont(str(FALLBACK_FILE))
     return {"font.family": ["DejaVu Sans", FALLBACK_FAMILY]}

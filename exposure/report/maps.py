@@ -27,6 +27,12 @@ CMAP = "viridis"
 GP_LINE = {"colors": "black", "linewidths": 1.3, "linestyles": "solid"}
 OCC_COLOUR = "#b0102a"
 OCC_LINE = {"colors": OCC_COLOUR, "linewidths": 1.6, "linestyles": "solid"}
+TEN_OCC_LINE = {"colors": OCC_COLOUR, "linewidths": 1.6, "linestyles": [(0, (4, 1.5, 1, 1.5))]}  # ten times occupational
+CATEGORY_LINES = (  # (key, tier, level, style, white casing): the boundaries of categories 2, 3 and 4
+    ("general_public", "general_public", 1.0, GP_LINE, False),
+    ("occupational", "occupational", 1.0, OCC_LINE, True),
+    ("ten_occupational", "occupational", 10.0, TEN_OCC_LINE, True),
+)
 HEAD_LINE = "#ff9e4a"  # the top of the evaluated body height in the sections
 CASING = {"colors": "white", "linewidths": 3.0, "linestyles": "solid"}
 ACCESS_STYLE = {  # outline and shading of surfaces by access class
@@ -416,7 +422,7 @@ def detail_region(assessment, *, max_fraction: float = 0.4):
 
 def _plan_map(assessment, width_in: float, max_height_in: float, region, legend: bool):
     from matplotlib.lines import Line2D
-    from matplotlib.patches import Patch, Polygon
+    from matplotlib.patches import Patch
 
     (x0, x1), (y0, y1) = _base_extent(assessment, region)
     span = max(x1 - x0, y1 - y0, 5.0)
@@ -442,7 +448,7 @@ def _plan_map(assessment, width_in: float, max_height_in: float, region, legend:
     pct_range = colour_range(assessment)
     norm = _norm(pct_range)
     mesh = None
-    drawn: dict[str, list[str]] = {"general_public": [], "occupational": []}
+    drawn: dict[str, list[str]] = {key: [] for key, *_ in CATEGORY_LINES}
     order = sorted(range(len(assessment.surfaces)), key=lambda i: (assessment.surfaces[i].elevation_m, i))
     for rank, i in enumerate(order):
         s = assessment.surfaces[i]
@@ -456,19 +462,18 @@ def _plan_map(assessment, width_in: float, max_height_in: float, region, legend:
                                  _percent(s.grid.ratio["general_public"], pct_range), cmap=CMAP, norm=norm,
                                  shading="flat", zorder=z, rasterized=True)
         if style["fill"]:
-            ax.add_patch(Polygon(s.outline, closed=True, facecolor=style["fill"], edgecolor="none", alpha=0.6,
-                                 zorder=z + 0.5))
+            ax.add_patch(_surface_patch(s, facecolor=style["fill"], edgecolor="none", alpha=0.6, zorder=z + 0.5))
         if style["hatch"]:
-            ax.add_patch(Polygon(s.outline, closed=True, fill=False, hatch=style["hatch"], linewidth=0,
-                                 edgecolor=style["hatch_colour"], zorder=z + 0.6))
+            ax.add_patch(_surface_patch(s, fill=False, hatch=style["hatch"], linewidth=0,
+                                        edgecolor=style["hatch_colour"], zorder=z + 0.6))
         if s.grid is not None and s.grid.element_zone is not None and s.grid.element_zone.any():
             _hatch_cells(ax, s.grid, z + 0.8)
         if s.grid is not None:
-            for tier, line, casing in (("general_public", GP_LINE, False), ("occupational", OCC_LINE, True)):
-                if _contour(ax, s.grid.x_m, s.grid.y_m, s.grid.ratio[tier], 1.0, line, z + 1, casing=casing):
-                    drawn[tier].append(s.name)
-        ax.add_patch(Polygon(s.outline, closed=True, fill=False, edgecolor=style["edgecolor"],
-                             linewidth=style["linewidth"], linestyle=style["linestyle"], zorder=z + 3))
+            for key, tier, level, line, casing in CATEGORY_LINES:
+                if _contour(ax, s.grid.x_m, s.grid.y_m, s.grid.ratio[tier], level, line, z + 1, casing=casing):
+                    drawn[key].append(s.name)
+        ax.add_patch(_surface_patch(s, fill=False, edgecolor=style["edgecolor"],
+                                    linewidth=style["linewidth"], linestyle=style["linestyle"], zorder=z + 3))
 
     box_style = {"boxstyle": "round,pad=0.25", "facecolor": "white", "edgecolor": "#808080", "linewidth": 0.4,
                  "alpha": 0.88}
@@ -517,6 +522,8 @@ def _plan_map(assessment, width_in: float, max_height_in: float, region, legend:
     handles = [
         Line2D([], [], color="black", linewidth=1.3, label="100 % of the general-public limit"),
         Line2D([], [], color=OCC_COLOUR, linewidth=1.6, label="100 % of the occupational limit"),
+        Line2D([], [], color=OCC_COLOUR, linewidth=1.6, linestyle=(0, (4, 1.5, 1, 1.5)),
+               label="10 × the occupational limit"),
         Line2D([], [], marker="o", color="black", markeredgecolor="white", linestyle="none", markersize=5,
                label="emitter; arrow: boresight"),
         Line2D([], [], marker="o", color="white", markeredgecolor="black", markeredgewidth=1.6, linestyle="none",
@@ -565,15 +572,34 @@ def _hatch_cells(ax, grid, zorder: float) -> None:
                                  edgecolor=ELEMENT_ZONE_COLOUR, linewidth=0.6, zorder=zorder))
 
 
-def surfaces_along(assessment, origin: tuple[float, float], azimuth_deg: float, s_m: np.ndarray):
-    """Where the section line crosses each surface: ``[(surface, mask over s_m)]``."""
+def _surface_path(surface):
+    """The surface's outline and holes as one matplotlib path (holes wound the other way)."""
+    import shapely
     from matplotlib.path import Path
 
+    polygon = shapely.orient_polygons(shapely.Polygon(surface.outline, surface.holes))
+    rings = [np.asarray(polygon.exterior.coords)] + [np.asarray(r.coords) for r in polygon.interiors]
+    vertices = np.concatenate(rings)
+    codes = np.concatenate([[Path.MOVETO] + [Path.LINETO] * (len(r) - 2) + [Path.CLOSEPOLY] for r in rings])
+    return Path(vertices, codes)
+
+
+def _surface_patch(surface, **style):
+    """A patch of the surface with its holes left open."""
+    from matplotlib.patches import PathPatch
+
+    return PathPatch(_surface_path(surface), **style)
+
+
+def surfaces_along(assessment, origin: tuple[float, float], azimuth_deg: float, s_m: np.ndarray):
+    """Where the section line crosses each surface (never its holes): ``[(surface, mask over s_m)]``."""
+    from exposure.geometry import contains, surface_polygon
+
     az = math.radians(azimuth_deg)
-    points = np.column_stack([origin[0] + s_m * math.sin(az), origin[1] + s_m * math.cos(az)])
+    x, y = origin[0] + s_m * math.sin(az), origin[1] + s_m * math.cos(az)
     out = []
     for s in assessment.surfaces:
-        mask = Path(np.asarray(s.outline, dtype=float)).contains_points(points, radius=1e-9)
+        mask = contains(surface_polygon(s.outline, s.holes), x, y)
         if mask.any():
             out.append((s, mask))
     return out

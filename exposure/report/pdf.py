@@ -252,17 +252,20 @@ def _map_page(b: _Builder, a) -> None:
     )
     b.add(b.p(
         f"Colour: total exposure from all emitters as % of the general-public limit, the <b>{esc(rule)}</b> over "
-        f"0–{height:g} m above each surface, on a {text.number(settings.get('grid_m'))} m grid. Black line: 100 % of "
-        f"the general-public limit; red line: 100 % of the occupational limit. "
+        f"0–{height:g} m above each surface, on a {text.number(settings.get('grid_m'))} m grid. The three lines bound "
+        f"the exposure categories 2, 3 and 4: black, 100 % of the general-public limit; red, 100 % of the "
+        f"occupational limit; red dash-dot, ten times it. "
         + (f"Surfaces at different elevations share the map (higher ones drawn on top): {surfaces}. "
            if len({s.elevation_m for s in a.surfaces}) > 1 else f"Surfaces: {surfaces}. ")
         + "Emitter positions are centres of radiation; work "
         "positions W1… are listed in the work-position table. Site frame: x east, y north, metres.", "caption"))
     lines = []
-    for tier, colour in (("general_public", "black"), ("occupational", "red")):
-        names = ", ".join(esc(n) for n in drawn[tier])
-        lines.append(f"100 % {text.TIER_NAMES[tier]} line ({colour}) drawn on: {names}." if names else
-                     f"The {text.TIER_NAMES[tier]} limit is not reached on any surface (no {colour} line).")
+    for key, description, colour in (("general_public", f"100 % {text.TIER_NAMES['general_public']}", "black"),
+                                     ("occupational", f"100 % {text.TIER_NAMES['occupational']}", "red"),
+                                     ("ten_occupational", f"10 × {text.TIER_NAMES['occupational']}", "red, dash-dot")):
+        names = ", ".join(esc(n) for n in drawn[key])
+        lines.append(f"{description} line ({colour}) drawn on: {names}." if names else
+                     f"{description}: not reached on any surface (no {colour} line).")
     b.add(b.p(" ".join(lines), "caption"))
     if region is not None:
         png, w, h, _ = maps.plan_map(a, width_in=b.width / inch, max_height_in=7.4, region=region)
@@ -437,16 +440,13 @@ def _findings(b: _Builder, a) -> None:
         b.add(b.p("No findings."))
     b.add(b.p("Shared responsibility (5 % rule)", "h2"))
     b.add(b.p(esc(text.FIVE_PERCENT_RULE), "small"))
-    operator_of = {e.id: e.operator for e in a.emitters}
-    rows = []
-    for s in a.surfaces:
-        for tier, ids in s.responsible.items():
-            if ids:
-                operators = sorted({operator_of.get(i, "?") for i in ids})
-                rows.append([esc(s.name), text.TIER_NAMES.get(tier, tier), esc(", ".join(ids)), esc("; ".join(operators))])
+    rows = [[f"{z.category} {z.word}", esc(z.surface), text.area(z.area_m2), esc(text.TIER_NAMES[z.tier]),
+             esc(", ".join(z.responsible_emitters)), esc("; ".join(sorted(z.responsible_operators))),
+             esc(", ".join(f"{i} {text.percent(z.shares.get(i, 0))}" for i in z.responsible_emitters))]
+            for z in a.zones]
     if rows:
-        b.table(["Surface", "Limit exceeded", "Emitters at ≥ 5 % of it", "Operators sharing responsibility"], rows,
-                [2.2, 1.4, 2.4, 3.3])
+        b.table(["Zone", "Surface", "Area m²", "Limit", "Emitters at ≥ 5 % of it inside the zone",
+                 "Operators sharing responsibility", "Largest share inside"], rows, [1.0, 1.4, 0.7, 1.1, 1.6, 2.0, 1.7])
     else:
         b.add(b.p("No limit is exceeded on any surface, so no responsibility is shared."))
 
@@ -458,19 +458,32 @@ def _controls(b: _Builder, a) -> None:
     public_over = [s for s in a.surfaces if s.compliant is False and s.governing_tier == "general_public"]
     b.add(b.p("Signs by zone", "h2"))
     b.add(b.p(esc(text.SIGN_SOURCE), "small"))
-    where = {
-        "NOTICE": ", ".join(esc(s.name) for s in over_gp) or None,
-        "CAUTION": ", ".join(f"{esc(s.name)} ({text.area(s.area_above_m2.get('general_public'))} m² above GP)"
-                             for s in over_gp) or None,
-        "WARNING": ", ".join(f"{esc(s.name)} ({text.area(s.area_above_m2.get('occupational'))} m² above Occ.)"
-                             for s in over_occ) or None,
-    }
-    rows = []
-    for name, meaning in text.SIGN_CATEGORIES:
-        rows.append([f"<b>{name}</b>", esc(meaning),
-                     (f"Needed: {where[name]}" if name != "NOTICE" else f"Needed at the ways in to: {where[name]}")
-                     if where[name] else "Not needed by this prediction."])
-    b.table(["Sign", "Where it goes", "On this site"], rows, [1.0, 5.0, 3.3])
+    present = {z.category for z in a.zones}
+    b.table(["Category", "Sign", "Where", "What it asks", "On this site"],
+            [[str(n), f"<b>{word}</b>", esc(where), esc(asks),
+              (f"{sum(1 for z in a.zones if z.category == n)} zone(s)" if n in present else "–") if n > 1 else "–"]
+             for n, word, where, asks in text.CATEGORIES],
+            [0.8, 1.1, 2.4, 3.6, 1.4])
+    if a.zones:
+        b.add(b.p("Zones", "h2"))
+        rows = []
+        for z in a.zones:
+            rows.append([f"<b>{z.category}</b> {z.word}", esc(z.surface), text.area(z.area_m2),
+                         f"{text.percent(z.max_ratio[z.tier])} of {esc(text.TIER_NAMES[z.tier])} at "
+                         f"({text.number(z.max_at_m[0], 1)}, {text.number(z.max_at_m[1], 1)})",
+                         esc(", ".join(z.responsible_emitters)) + "<br/>" + esc("; ".join(z.responsible_operators)),
+                         esc(", ".join(z.power_down) or "–")])
+        b.table(["Category", "Surface", "Area m²", "Maximum", "Emitters ≥ 5 % inside; operators", "Power down to enter"],
+                rows, [1.3, 1.5, 0.8, 2.3, 2.4, 1.4])
+        b.add(b.p("Power down to enter: for a category 2 zone, the emitters to switch off before the general "
+                  "public may enter; for categories 3 and 4, before anyone may (largest contributors first, "
+                  "judged on each emitter's own maximum over the body height: an upper bound).", "small"))
+        rows = [[f"<b>{sg.word}</b>", esc(sg.surface), f"({text.number(sg.at_m[0], 1)}, {text.number(sg.at_m[1], 1)})",
+                 esc(sg.reason)] for sg in a.signs]
+        b.add(b.p("Where the signs go", "h2"))
+        b.table(["Sign", "Surface", "At (x, y) m", "Why"], rows, [1.1, 1.8, 1.6, 5.0])
+    else:
+        b.add(b.p("No zone above the general-public limit on any surface: category 1 everywhere people can be."))
 
     b.add(b.p("Barriers and markings", "h2"))
     if over_gp:
@@ -520,9 +533,13 @@ def _controls(b: _Builder, a) -> None:
 
     b.add(b.p("Power-down and lockout", "h2"))
     power_down = [(n, w) for n, w in enumerate(a.work_positions, start=1) if w.power_down]
-    if power_down:
-        b.bullets([f"W{n} {esc(w.name)}: power down and lock out {esc(', '.join(w.power_down))} "
-                   f"(contact {esc(', '.join(w.power_down_operators))}) before work starts." for n, w in power_down])
+    items = [f"{esc(text.zone_name(z))}: power down and lock out {esc(', '.join(z.power_down))} "
+             f"(contact {esc(', '.join(z.power_down_operators))}) before anyone enters."
+             for z in a.zones if z.category >= 3 and z.power_down]
+    items += [f"W{n} {esc(w.name)}: power down and lock out {esc(', '.join(w.power_down))} "
+              f"(contact {esc(', '.join(w.power_down_operators))}) before work starts." for n, w in power_down]
+    if items:
+        b.bullets(items)
     b.add(b.p("Before any work inside a boundary on the map or within the distances of the boundary table, the operators of "
               "the emitters concerned must power them down (or reduce them as agreed) and lock or tag them out; "
               "the worker confirms with the operator, and with a monitor, before entering."))

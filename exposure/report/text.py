@@ -111,28 +111,41 @@ VERDICT_SENTENCES = {
 }
 
 
+def zone_name(zone) -> str:
+    """How the worksheet names a zone: ``category 3 zone on Main roof near (33.0, 14.0) m, 8.4 m²``."""
+    return (f"category {zone.category} zone on {zone.surface} near ({number(zone.max_at_m[0], 1)}, "
+            f"{number(zone.max_at_m[1], 1)}) m, {area(zone.area_m2)} m²")
+
+
 def next_steps(assessment) -> list[str]:
     """What must happen next, in order, from the verdict and the findings."""
     steps: list[str] = []
     public_over = [s for s in assessment.surfaces if s.compliant is False and s.governing_tier == "general_public"]
-    occ_over = [s for s in assessment.surfaces if s.compliant is False and s.governing_tier == "occupational"]
+    zones = list(getattr(assessment, "zones", ()))
     for s in public_over:
-        who = ", ".join(s.responsible.get("general_public", [])) or "the emitters reaching it"
         scale = (f"; reducing every emitter to {number(s.headroom_factor, 2)} × its power would be enough"
                  if s.headroom_factor else "")
-        steps.append(
-            f"Keep the public out of the zone on {s.name} where the general-public limit is "
-            f"exceeded (predicted maximum {percent(s.max_ratio['general_public'])} of the limit over "
-            f"{area(s.area_above_m2.get('general_public'))} m²): a barrier at the boundary shown on the "
-            f"map, or lower power from {who}{scale}. Until then the site does not comply."
-        )
-    for s in occ_over:
-        who = ", ".join(s.responsible.get("occupational", [])) or "the emitters reaching it"
-        steps.append(
-            f"Treat the zone on {s.name} above the occupational limit (maximum "
-            f"{percent(s.max_ratio['occupational'])}) as no-entry while transmitting: mark it, "
-            f"sign it, and power down {who} before anyone works inside it."
-        )
+        for z in (z for z in zones if z.surface == s.name and z.category == 2):
+            who = ", ".join(z.responsible_emitters) or "the emitters reaching it"
+            steps.append(
+                f"Keep the public out of the {zone_name(z)} (predicted maximum "
+                f"{percent(z.max_ratio['general_public'])} of the general-public limit at "
+                f"({number(z.max_at_m[0], 1)}, {number(z.max_at_m[1], 1)}) m): a barrier on its boundary, or lower "
+                f"power from {who}{scale}. Until then the site does not comply."
+            )
+    cores = [z for z in zones if z.category == 4]
+    for z in zones:
+        inner = [c for c in cores if c.surface == z.surface and c.polygon.intersects(z.polygon)]
+        if z.category == 3 or (z.category == 4 and not any(
+                o.category == 3 and o.surface == z.surface and o.polygon.intersects(z.polygon) for o in zones)):
+            core = (f", with a category 4 core of {area(sum(c.area_m2 for c in inner))} m² (WARNING signs at its edge)"
+                    if z.category == 3 and inner else "")
+            steps.append(
+                f"Treat the {zone_name(z)} (up to {percent(z.max_ratio['occupational'])} of the occupational "
+                f"limit{core}) as no-entry while transmitting: mark it and post {z.word} signs; before anyone "
+                f"enters, power down and lock out {', '.join(z.power_down) or 'the emitters listed'} "
+                f"({', '.join(z.power_down_operators) or '-'})."
+            )
     if any(f.severity == "measure" for f in assessment.flags):
         steps.append(
             "Have a qualified person measure where the findings ask for it, with an instrument "
@@ -154,33 +167,27 @@ def next_steps(assessment) -> list[str]:
     return steps
 
 
-# --- controls (IEEE C95.7 sign categories, in our own words) -----------------------------
+# --- controls: the four exposure categories and their signs, in our own words --------------
 
-SIGN_CATEGORIES = (
-    (
-        "NOTICE",
-        "At every way in to an area where the general-public limit may be exceeded (roof "
-        "doors, hatches, ladders, compound gates): tells people that transmitting antennas "
-        "are ahead and that they should follow the posted instructions.",
-    ),
-    (
-        "CAUTION",
-        "At the edge of any zone where the prediction exceeds the general-public limit but "
-        "stays within the occupational limit: only people trained and aware of the exposure "
-        "may enter, and they should not linger.",
-    ),
-    (
-        "WARNING",
-        "At the edge of any zone where the prediction exceeds the occupational limit: no one "
-        "enters while the antennas transmit; entry only after the listed power-down and "
-        "lockout.",
-    ),
+CATEGORIES = (
+    (1, "INFORMATION", "At or below the general-public limit.",
+     "An information sign is optional (at antennas people can approach)."),
+    (2, "NOTICE", "Above the general-public limit, within the occupational limit.",
+     "Positive access control: only people aware of the exposure may enter; NOTICE signs at the ways in."),
+    (3, "CAUTION", "Above the occupational limit, up to ten times it.",
+     "Boundary marked (signs, chains, railings, contrasting paint or diagrams); RF safety training; "
+     "power-down and lockout, or time averaging, before anyone enters."),
+    (4, "WARNING", "More than ten times the occupational limit.",
+     "As category 3, and no one enters while transmitting; DANGER instead of WARNING where immediate "
+     "injury such as RF burns is possible (at the antennas)."),
 )
+"""(category, sign word, where, what it asks): 47 CFR § 1.1307(b) as amended by FCC 19-126
+(85 FR 81472, 2020) and IEEE C95.7; categories three and four confirmed, one and two from memory."""
 
 SIGN_SOURCE = (
-    "Sign categories follow IEEE C95.7, Recommended Practice for Radio Frequency Safety "
-    "Programs; the sign designs themselves are set by the applicable sign standard and local "
-    "rules."
+    "Exposure categories and sign words follow the FCC's RF mitigation rule (47 CFR 1.1307(b) as "
+    "amended by FCC 19-126) and IEEE C95.7, Recommended Practice for Radio Frequency Safety "
+    "Programs; the sign designs themselves are set by the applicable sign standard and local rules."
 )
 
 GENERAL_CONTROLS = (

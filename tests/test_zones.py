@@ -1,0 +1,188 @@
+"""Exposure categories, zones, responsibility per zone, signs, and surfaces with holes.
+
+Sources: 47 CFR § 1.1307(b) as amended by FCC 19-126 (85 FR 81472, 2020) and IEEE C95.7 for
+the categories and sign words (REFERENCES.md § 10: categories three and four confirmed, one
+and two from memory); 47 CFR § 1.1310 Table 1 for the limits (confirmed); shapely (GEOS) as
+the general-purpose geometry reference.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+
+import numpy as np
+import pytest
+import shapely
+from typer.testing import CliRunner
+
+from exposure.assessment import assess
+from exposure.cli import app
+from exposure.limits import load_standard
+from exposure.loader import load_site
+from exposure.zones import SIGN_WORDS, category_of, category_thresholds_w_m2
+
+runner = CliRunner()
+
+
+def site(emitters, surfaces, access_points=(), **info):
+    return {
+        "schema_version": 1,
+        "site": {"id": "zones", "name": "Zone test (invented)", "standard": "fcc", "ground_reflection": "none",
+                 "grid_m": 0.25, **info},
+        "surfaces": surfaces,
+        "emitters": emitters,
+        "access_points": list(access_points),
+    }
+
+
+def panel(ident, operator, x, y, azimuth, eirp=400.0, z=1.6):
+    return {"id": ident, "operator": operator, "kind": "panel", "frequency_mhz": 2000, "eirp_w": eirp,
+            "x_m": x, "y_m": y, "z_m": z, "azimuth_deg": azimuth, "h_beamwidth_deg": 65, "v_beamwidth_deg": 12,
+            "front_to_back_db": 25, "length_m": 0.5}
+
+
+@pytest.fixture
+def load(tmp_path):
+    def _load(data, name="site.json"):
+        path = tmp_path / name
+        path.write_text(json.dumps(data))
+        return load_site(path)
+
+    return _load
+
+
+def test_category_thresholds_at_850_mhz_from_the_fcc_table():
+    """Derived from 47 CFR § 1.1310 Table 1 at 850 MHz: public f/1500 mW/cm² = 5.667 W/m²,
+    occupational f/300 = 28.33 W/m², ten times that 283.3 W/m² (REFERENCES.md § 10)."""
+    table = load_standard("fcc")
+    thresholds = category_thresholds_w_m2(
+        table.power_density_limit_w_m2(850, "general_public"), table.power_density_limit_w_m2(850, "occupational")
+    )
+    assert thresholds[2] == pytest.approx(5.667, rel=1e-3)
+    assert thresholds[3] == pytest.approx(28.33, rel=1e-3)
+    assert thresholds[4] == pytest.approx(283.3, rel=1e-3)
+    assert [category_of(0.9, 0.18), category_of(1.1, 0.22), category_of(6, 1.2), category_of(60, 12)] == [1, 2, 3, 4]
+    assert SIGN_WORDS == {1: "INFORMATION", 2: "NOTICE", 3: "CAUTION", 4: "WARNING"}
+
+
+def test_each_zone_names_only_the_operators_at_five_percent_inside_it(load):
+    """Two separate exceedances on one surface, fed by different operators (47 CFR § 1.1307(b),
+    the 5 % rule, applied per zone): P1 of operator A at x = 5 and P2 of operator B at x = 45,
+    both facing north, 40 m apart. Inside P1's zone (within about 5 m of it) P2 is at least 35 m
+    away and more than 65° off its boresight: its share is at most the spherical value at peak
+    gain attenuated by the 3GPP-tangent skirt's 9 dB at 65° (hand calculation: 400 W EIRP, 35 m,
+    10 W/m² → 400/(4π·35²)/10 × 10^(-0.9) = 0.33 %), far below 5 %; and the other way round."""
+    surfaces = [{"name": "Roof", "access": "public", "outline": [[0, 0], [50, 0], [50, 20], [0, 20]]}]
+    result = assess(load(site([panel("P1", "Operator A (invented)", 5, 1, 0), panel("P2", "Operator B (invented)", 45, 1, 0)],
+                              surfaces)))
+    public = [z for z in result.zones if z.category == 2]
+    assert len(public) == 2
+    west, east = sorted(public, key=lambda z: z.max_at_m[0])
+    assert west.responsible_emitters == ("P1",) and west.responsible_operators == ("Operator A (invented)",)
+    assert east.responsible_emitters == ("P2",) and east.responsible_operators == ("Operator B (invented)",)
+    assert west.shares.get("P2", 0.0) < 0.0033 and east.shares.get("P1", 0.0) < 0.0033
+    # the whole-surface list, the old way, would have named both for each zone
+    assert set(result.surfaces[0].responsible["general_public"]) == {"P1", "P2"}
+
+
+def test_zones_nest_and_signs_go_to_the_access_points(load):
+    """A category-3 zone lies inside its category-2 zone (a higher threshold of the same field);
+    each access point onto the surface gets the sign word of every category present there, and
+    each zone's edge a sign on the way from it."""
+    surfaces = [{"name": "Roof", "access": "occupational", "outline": [[0, 0], [20, 0], [20, 20], [0, 20]]}]
+    doors = [{"name": "Door", "surface": "Roof", "x_m": 0.2, "y_m": 10}]
+    result = assess(load(site([panel("P1", "Operator A (invented)", 10, 1, 0, eirp=4000)], surfaces, doors)))
+    by_category = {z.category: z for z in result.zones}
+    assert {2, 3} <= set(by_category)
+    assert by_category[2].polygon.buffer(1e-6).covers(by_category[3].polygon)
+    at_door = [s for s in result.signs if s.at_m[:2] == (0.2, 10)]
+    assert {s.word for s in at_door} == {SIGN_WORDS[c] for c in by_category}
+    for zone in result.zones:
+        edge_signs = [s for s in result.signs if s.category == zone.category and "edge" in s.reason]
+        assert edge_signs and all(zone.polygon.exterior.distance(shapely.Point(s.at_m[:2])) < 1e-3 for s in edge_signs)
+
+
+def test_zone_json_and_the_map_show_three_boundaries(load, tmp_path):
+    """The JSON carries zones and signs (INTERFACE.md); the worksheet's map caption and sign
+    table name all three boundaries: public, occupational, ten times occupational."""
+    from pypdf import PdfReader
+
+    surfaces = [{"name": "Roof", "access": "occupational", "outline": [[0, 0], [20, 0], [20, 20], [0, 20]]}]
+    data = site([panel("P1", "Operator A (invented)", 10, 1, 0, eirp=40000)], surfaces)
+    path = tmp_path / "three.json"
+    path.write_text(json.dumps(data))
+    out = json.loads(runner.invoke(app, ["assess", str(path), "--json"]).stdout)
+    assert {z["category"] for z in out["zones"]} == {2, 3, 4}
+    for zone in out["zones"]:
+        assert {"surface", "category", "area_m2", "polygon_m", "max_ratio", "max_at_m", "responsible_emitters",
+                "responsible_operators", "power_down"} <= set(zone)
+    assert {s["word"] for s in out["signs"]} == {"NOTICE", "CAUTION", "WARNING"}
+    result = runner.invoke(app, ["report", str(path), "-o", str(tmp_path / "three.pdf"), "-q"])
+    assert result.exit_code == 0, result.output
+    text = " ".join(page.extract_text() for page in PdfReader(tmp_path / "three.pdf").pages)
+    for phrase in ("100 % general public line (black) drawn on", "100 % occupational line (red) drawn on",
+                   "10 × occupational line (red, dash-dot) drawn on", "CAUTION", "WARNING", "NOTICE"):
+        assert phrase in " ".join(text.split()), phrase
+
+
+# --- surfaces with holes -------------------------------------------------------------------------
+
+
+def test_a_penthouse_hole_has_no_grid_point_maximum_or_zone(load):
+    """A roof with a penthouse (a hole) beside a panel aimed across it: no map cell, maximum,
+    hot spot or zone inside the hole; the surface's area excludes it (shapely's area as the
+    reference)."""
+    hole = [[8, 3], [12, 3], [12, 7], [8, 7]]
+    surfaces = [{"name": "Roof", "access": "occupational", "outline": [[0, 0], [20, 0], [20, 20], [0, 20]], "holes": [hole]}]
+    result = assess(load(site([panel("P1", "Operator A (invented)", 10, 1, 0, eirp=4000)], surfaces)))
+    roof = result.surfaces[0]
+    penthouse = shapely.Polygon(hole)
+    assert roof.area_m2 == pytest.approx(400 - 16)
+    gx, gy = np.meshgrid(roof.grid.x_m, roof.grid.y_m)
+    on_map = np.isfinite(roof.grid.ratio["general_public"])
+    assert not shapely.contains_xy(penthouse, gx[on_map], gy[on_map]).any()
+    for point in roof.max_at_m.values():
+        assert not penthouse.contains(shapely.Point(point[:2]))
+    for zone in result.zones:
+        assert zone.polygon.intersection(penthouse).area < 1e-9
+    from exposure.report.maps import surfaces_along
+
+    s = np.linspace(0, 20, 401)
+    (surface, mask), = surfaces_along(result, (10.0, 0.0), 0.0, s)  # the section line through the penthouse
+    assert not mask[(s > 3.001) & (s < 6.999)].any()  # nobody drawn standing inside it
+
+
+def test_overlapping_surfaces_and_bad_holes_are_refused(tmp_path):
+    """Overlaps at one elevation count people twice: refused with both surfaces named, unless
+    one sits in a hole of the other. A hole outside the outline or crossing another is refused
+    with the place."""
+    roof = {"name": "Roof", "access": "occupational", "outline": [[0, 0], [20, 0], [20, 20], [0, 20]]}
+    garden = {"name": "Garden", "access": "public", "outline": [[5, 5], [10, 5], [10, 10], [5, 10]]}
+    data = site([panel("P1", "A (invented)", 30, 30, 0)], [roof, garden])
+    path = tmp_path / "overlap.json"
+    path.write_text(json.dumps(data))
+    result = runner.invoke(app, ["validate", str(path)])
+    assert result.exit_code == 2 and "'Roof'" in result.output and "'Garden'" in result.output and "overlap" in result.output
+    roof["holes"] = [garden["outline"]]
+    path.write_text(json.dumps(data))
+    assert runner.invoke(app, ["validate", str(path)]).exit_code == 0
+    roof["holes"] = [[[25, 5], [30, 5], [30, 10], [25, 10]]]
+    path.write_text(json.dumps(data))
+    result = runner.invoke(app, ["validate", str(path)])
+    assert result.exit_code == 2 and "hole lies outside the outline" in result.output
+    roof["holes"] = []
+    roof["outline"] = [[0, 0], [20, 20], [20, 0], [0, 20]]
+    path.write_text(json.dumps(data))
+    result = runner.invoke(app, ["validate", str(path)])
+    assert result.exit_code == 2 and "crosses itself at (10, 10)" in result.output
+
+
+def test_sample_roof_areas_match_shapely():
+    """The demo roof's areas (outline less the penthouse) against shapely computed here."""
+    from exposure.loader import load_site as load_file
+
+    sample = load_file(__import__("conftest").REPO / "sample_sites" / "rooftop-larkspur.toml")
+    roof = next(s for s in sample.record.surfaces if s.name == "Main roof")
+    expected = shapely.Polygon(roof.outline, roof.holes).area
+    assert math.isclose(expected, 28 * 42 - 14 * 10 - 30)

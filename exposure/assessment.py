@@ -119,8 +119,44 @@ def emitter_power_density(site: LoadedSite, points: np.ndarray) -> np.ndarray:
     return np.stack([power_density(a, points, reflection=factor, evaluation=evaluation) for a in site.antennas])
 
 
-def probe(site: LoadedSite, point_m: Sequence[float]) -> dict:
-    """Power density and ratios at one point (the ``exposure probe`` JSON)."""
+def body_column(site: LoadedSite, x: float, y: float, z0: float, limits: SiteLimits | None = None):
+    """A standing person's column at (x, y) from z0: per-emitter ratios over the body height.
+
+    Returns ``(ratio, totals)``: tier -> (emitters, heights) ratio of each emitter to its own
+    limit, and tier -> the total reduced over the height as the site evaluates it (peak or
+    spatial average) — what a work position and ``probe --standing`` report.
+    """
+    limits = limits or site_limits(site)
+    offsets = body_offsets(site.record.site.body_height_m)
+    points = np.column_stack([np.full(len(offsets), x), np.full(len(offsets), y), z0 + offsets])
+    density = emitter_power_density(site, points)  # (n_e, n_h)
+    ratio = {t: density / limits.limit[t][:, None] for t in TIERS}
+    evaluation = site.record.site.evaluation
+    totals = {t: float(reduce_over_height(r.sum(axis=0), evaluation)) for t, r in ratio.items()}
+    return ratio, totals
+
+
+def standing_surface(site: LoadedSite, x: float, y: float, z: float):
+    """The surface at elevation *z* that holds (x, y), or None."""
+    for surface in site.record.surfaces:
+        if abs(surface.elevation_m - z) < 1e-9 and bool(contains(surface.polygon, x, y)):
+            return surface
+    return None
+
+
+def probe(site: LoadedSite, point_m: Sequence[float], standing: bool | None = None) -> dict:
+    """Power density and ratios at one point (the ``exposure probe`` JSON).
+
+    Parameters
+    ----------
+    site : LoadedSite
+    point_m : sequence of 3 floats
+        The point [m], site frame.
+    standing : bool, optional
+        Also report the body-height value of a person standing at z (``body``): True always,
+        False never, None (default) where z is the elevation of a surface that holds (x, y).
+        It is the value the assessment uses for a work position there.
+    """
     point = np.asarray(point_m, dtype=float).reshape(1, 3)
     density = emitter_power_density(site, point)[:, 0]
     limits = site_limits(site)
@@ -135,8 +171,16 @@ def probe(site: LoadedSite, point_m: Sequence[float]) -> dict:
         })
     total = {tier: float(np.sum(density / limits.limit[tier])) for tier in TIERS}
     inside = [a.id for a in site.antennas if bool(element_zone(a, point)[0])]
-    return {"point_m": [float(v) for v in point[0]], "standard": site.table.key, "emitters": emitters, "total_ratio": total,
-            "element_zone": inside}
+    out = {"point_m": [float(v) for v in point[0]], "standard": site.table.key, "emitters": emitters, "total_ratio": total,
+           "element_zone": inside}
+    x, y, z = (float(v) for v in point[0])
+    surface = standing_surface(site, x, y, z)
+    if standing or (standing is None and surface is not None):
+        _, totals = body_column(site, x, y, z, limits)
+        body_height = site.record.site.body_height_m
+        out["body"] = {"from_z_m": z, "to_z_m": z + body_height, "evaluation": site.record.site.evaluation,
+                       "surface": surface.name if surface is not None else None, "total_ratio": totals}
+    return out
 
 
 # --- surfaces --------------------------------------------------------------------------------
@@ -473,12 +517,7 @@ def emitter_boundaries(antenna: Antenna, limits_w_m2: dict[str, float], reflecti
 
 def _work_position(site, position, limits: SiteLimits, offsets) -> WorkPositionResult:
     evaluation = site.record.site.evaluation
-    points = np.column_stack([
-        np.full(len(offsets), position.x_m), np.full(len(offsets), position.y_m), position.z_m + offsets
-    ])
-    density = emitter_power_density(site, points)  # (n_e, n_h)
-    ratio = {t: density / limits.limit[t][:, None] for t in TIERS}
-    totals = {t: float(reduce_over_height(r.sum(axis=0), evaluation)) for t, r in ratio.items()}
+    ratio, totals = body_column(site, position.x_m, position.y_m, position.z_m, limits)
     occupational = ratio["occupational"]
     contributions = reduce_over_height(occupational, evaluation, axis=1)
     order = np.argsort(-contributions, kind="stable")

@@ -186,3 +186,44 @@ def test_sample_roof_areas_match_shapely():
     roof = next(s for s in sample.record.surfaces if s.name == "Main roof")
     expected = shapely.Polygon(roof.outline, roof.holes).area
     assert math.isclose(expected, 28 * 42 - 14 * 10 - 30)
+
+
+def test_probe_at_a_work_position_gives_the_work_positions_value(load, tmp_path):
+    """`probe --at x,y,z` at a work position's standing point reports the same body-height value
+    as the work position (the point value at foot level differs, and is labelled as such)."""
+    from exposure.assessment import probe
+
+    surfaces = [{"name": "Roof", "access": "occupational", "outline": [[0, 0], [20, 0], [20, 20], [0, 20]]}]
+    data = site([panel("P1", "Operator A (invented)", 10, 1, 0, eirp=4000)], surfaces)
+    data["work_positions"] = [{"name": "Unit", "x_m": 10.0, "y_m": 4.0, "z_m": 0.0}]
+    loaded = load(data)
+    work = assess(loaded).work_positions[0]
+    probed = probe(loaded, (10.0, 4.0, 0.0))
+    for tier in ("general_public", "occupational"):
+        assert probed["body"]["total_ratio"][tier] == pytest.approx(work.ratio[tier], rel=1e-12)
+    assert probed["body"]["from_z_m"] == 0.0 and probed["body"]["to_z_m"] == 2.0
+    assert "body" not in probe(loaded, (10.0, 4.0, 1.0))  # 1 m up is not a standing level
+    assert "body" in probe(loaded, (10.0, 4.0, 1.0), standing=True)
+    path = tmp_path / "probe.json"
+    path.write_text(json.dumps(data))
+    out = json.loads(runner.invoke(app, ["probe", str(path), "--at", "10,4,0", "--json"]).stdout)
+    assert out["body"]["total_ratio"]["occupational"] == pytest.approx(work.ratio["occupational"], rel=1e-12)
+
+
+def test_an_omni_first_site_reports_and_omnis_get_no_boresight_arrow(tmp_path):
+    """A site whose first emitter is an omni crashed `report`; elsewhere an omni was drawn with
+    the previous emitter's boresight arrow. Omni labels carry no arrow tip."""
+    from exposure.report.maps import _emitter_labels, _Labels
+
+    omni = {"id": "O1", "operator": "Op O (invented)", "kind": "omni", "frequency_mhz": 850, "power_w": 40,
+            "gain_dbi": 10, "x_m": 5, "y_m": 5, "z_m": 3, "v_beamwidth_deg": 8, "length_m": 1.5}
+    surfaces = [{"name": "Roof", "access": "occupational", "outline": [[0, 0], [20, 0], [20, 20], [0, 20]]}]
+    data = site([omni, panel("P1", "A (invented)", 10, 1, 0), dict(omni, id="O2", x_m=15)], surfaces)
+    path = tmp_path / "omni.json"
+    path.write_text(json.dumps(data))
+    result = runner.invoke(app, ["report", str(path), "-o", str(tmp_path / "omni.pdf"), "-q", "--grid-m", "1"])
+    assert result.exit_code == 0, result.output
+    assessed = assess(load_site(path))
+    placed = _emitter_labels(assessed, _Labels(0.05), 1.0)
+    tips = {e.id: tip for e, tip, *_ in placed}
+    assert tips["O1"] is None and tips["O2"] is None and tips["P1"] is not None

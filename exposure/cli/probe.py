@@ -37,15 +37,21 @@ def probe(
     at: Annotated[str, typer.Option("--at", help="Point X,Y,Z in metres (site frame).")],
     standard: StandardOption = None,
     limits_file: LimitsFileOption = None,
+    standing: Annotated[
+        bool | None,
+        typer.Option("--standing/--point-only",
+                     help="Also give the value over a standing person's body height from Z, as the assessment "
+                          "uses for work positions (default: when Z is the elevation of a surface holding X,Y)."),
+    ] = None,
     json_out: JsonOption = False,
 ) -> None:
-    """Power density of every emitter, and the total exposure ratio, at one point."""
+    """Power density of every emitter, and the total exposure ratio, at one point (and over a body standing there)."""
     from exposure.assessment import probe as probe_point
     from exposure.loader import load_site
 
     point = parse_point(at)
     site = load_site(site_file, standard=standard, limits_file=limits_file)
-    result = probe_point(site, point)
+    result = probe_point(site, point, standing=standing)
     if json_out:
         print_json(result)
         return
@@ -63,6 +69,15 @@ def probe(
     total = result["total_ratio"]
     table.add_row("total", "", "", "", fmt(100 * total["general_public"]), fmt(100 * total["occupational"]), style="bold")
     out.print(table)
+    out.print("Point value: at the point itself, with the site's ground reflection.")
+    body = result.get("body")
+    if body is not None:
+        rule = "peak" if body["evaluation"] == "peak" else "spatial average"
+        out.print(
+            f"Body value ({rule} over {fmt(body['from_z_m'])}–{fmt(body['to_z_m'])} m, as the assessment uses for a "
+            f"person standing here): {fmt(100 * body['total_ratio']['general_public'])} % of the general-public limit, "
+            f"{fmt(100 * body['total_ratio']['occupational'])} % of the occupational limit."
+        )
     if result["element_zone"]:
         out.print(
             f"The point is in the element zone of {', '.join(esc(i) for i in result['element_zone'])} (within one "

@@ -272,10 +272,10 @@ def _emitter_labels(assessment, labels: _Labels, base: float, region=None) -> li
             va = "bottom" if sy > 0.35 else ("top" if sy < -0.35 else "center")
             options = []
             for factor in (1.0, 1.45, 1.9, 2.35, 2.8, 3.3):
-                tip = (x + factor * base * sx, y + factor * base * sy)
+                end = (x + factor * base * sx, y + factor * base * sy)
                 gap = 0.12 * base
-                options.append(((tip[0] + gap * sx, tip[1] + gap * sy), ha, va, tip))
-        for at, ha, va, _tip in options:
+                options.append(((end[0] + gap * sx, end[1] + gap * sy), ha, va, end))
+        for at, ha, va, tip in options:  # the chosen option's own arrow (None for an omni)
             box = _box_at(*at, width, height, ha, va)
             if labels.free(box):
                 break

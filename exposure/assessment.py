@@ -19,7 +19,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from exposure import __version__
+from exposure import __version__, numbers
 from exposure.antenna import Antenna
 from exposure.field import (
     REFLECTION_FACTORS,
@@ -745,11 +745,11 @@ def assess(
 
 
 def _area_text(area_m2: float) -> str:
-    return f"{area_m2:.1f} m²" if area_m2 > 0 else "a zone smaller than one grid cell (found at a hot spot)"
+    return f"{numbers.area(area_m2)} m²" if area_m2 > 0 else "a zone smaller than one grid cell (found at a hot spot)"
 
 
 def _pct(ratio: float) -> str:
-    return f"{100 * ratio:.0f} %" if ratio >= 0.1 else f"{100 * ratio:.2g} %"
+    return numbers.percent(ratio)
 
 
 def _flags(site, surfaces, work, emitters, limits, measure_above) -> list[Flag]:

@@ -227,3 +227,29 @@ def test_an_omni_first_site_reports_and_omnis_get_no_boresight_arrow(tmp_path):
     placed = _emitter_labels(assessed, _Labels(0.05), 1.0)
     tips = {e.id: tip for e, tip, *_ in placed}
     assert tips["O1"] is None and tips["O2"] is None and tips["P1"] is not None
+
+
+def test_cli_in_a_pipe_shows_full_names_and_one_number_format(tmp_path):
+    """In a pipe (CliRunner is not a terminal) tables are never cut at 80 columns; the same number
+    reads the same in the CLI table, the findings (text built from the JSON) and the PDF —
+    all through exposure.numbers."""
+    from pypdf import PdfReader
+
+    from conftest import REPO
+    from exposure.numbers import number, percent
+
+    sample = REPO / "sample_sites" / "rooftop-larkspur.toml"
+    out = runner.invoke(app, ["assess", str(sample), "--grid-m", "1"]).stdout
+    lines = out.splitlines()
+    assert any("Birchline Networks (demo)" in line and "B1" in line for line in lines)
+    assert any(line.lstrip().startswith("Plant deck walkway") for line in lines)
+    assert "…" not in out
+    data = json.loads(runner.invoke(app, ["assess", str(sample), "--grid-m", "1", "--json"]).stdout)
+    roof = next(s for s in data["surfaces"] if s["name"] == "Main roof")
+    shown = number(100 * roof["max_ratio"]["occupational"])  # e.g. 7,362
+    assert f" {shown} " in out  # the CLI table
+    assert percent(roof["max_ratio"]["occupational"]) in " ".join(f["message"] for f in data["flags"])  # findings
+    result = runner.invoke(app, ["report", str(sample), "--grid-m", "1", "-o", str(tmp_path / "r.pdf"), "-q"])
+    assert result.exit_code == 0
+    text = " ".join(" ".join(page.extract_text() for page in PdfReader(tmp_path / "r.pdf").pages).split())
+    assert percent(roof["max_ratio"]["occupational"]) in text

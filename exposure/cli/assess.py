@@ -20,6 +20,9 @@ from exposure.cli.common import (
     print_cautions,
     print_json,
 )
+from exposure.cli.common import (
+    table as make_table,
+)
 
 EXIT_FAIL_ON = 3
 
@@ -94,17 +97,16 @@ def assess(
 def render(result) -> None:
     """Readable tables of an Assessment."""
     from rich.markup import escape as esc
-    from rich.table import Table
 
     out = console()
     out.print(f"[bold]{esc(result.site_name)}[/bold] ({result.site_id}), {esc(result.standard_citation)}")
-    emitters = Table(title="Emitters", show_edge=False, header_style="bold", title_justify="left")
+    emitters = make_table(title="Emitters", show_edge=False, header_style="bold", title_justify="left")
     for col in ("emitter", "operator", "kind", "MHz", "EIRP W", "ERP W", "model"):
         emitters.add_column(col, justify="right" if col in ("MHz", "EIRP W", "ERP W") else "left")
     for e in result.emitters:
         emitters.add_row(esc(e.id), esc(e.operator), e.kind, fmt(e.frequency_mhz, 5), fmt(e.eirp_w), fmt(e.erp_w), e.model)
     out.print(emitters)
-    boundaries = Table(title="Compliance boundaries, metres from the centre of radiation",
+    boundaries = make_table(title="Compliance boundaries, metres from the centre of radiation",
                        show_edge=False, header_style="bold", title_justify="left")
     for col in ("emitter", "tier", "front", "back", "side", "above", "below", "main beam"):
         boundaries.add_column(col, justify="left" if col in ("emitter", "tier") else "right")
@@ -117,7 +119,7 @@ def render(result) -> None:
                 f"{e.main_beam_boundary_m[tier]:.2f}",
             )
     out.print(boundaries)
-    surfaces = Table(title="Surfaces: total exposure, % of the general-public (GP) and occupational (occ) limits", show_edge=False, header_style="bold",
+    surfaces = make_table(title="Surfaces: total exposure, % of the general-public (GP) and occupational (occ) limits", show_edge=False, header_style="bold",
                      title_justify="left")
     for col in ("surface", "access", "max % GP", "max % occ", "m² > GP", "m² > occ", "compliant"):
         surfaces.add_column(col, justify="left" if col in ("surface", "access", "compliant") else "right",
@@ -128,7 +130,7 @@ def render(result) -> None:
                          f"{s.area_above_m2['general_public']:.1f}", f"{s.area_above_m2['occupational']:.1f}", verdict)
     out.print(surfaces)
     if result.work_positions:
-        work = Table(title="Work positions", show_edge=False, header_style="bold", title_justify="left")
+        work = make_table(title="Work positions", show_edge=False, header_style="bold", title_justify="left")
         for col in ("position", "% occ limit", "power down first"):
             work.add_column(col, justify="right" if col.startswith("%") else "left")
         for w in result.work_positions:

@@ -32,10 +32,34 @@ CAUTIONS = (
 
 
 def console(stderr: bool = False):
-    """A rich console for tables (imported lazily to keep start-up quick)."""
+    """A rich console for tables (imported lazily to keep start-up quick).
+
+    In a pipe or a file the lines are never wrapped or cut (nothing is truncated at 80
+    columns); on a terminal rich fits them to its width.
+    """
+    import sys
+
     from rich.console import Console
 
-    return Console(stderr=stderr, highlight=False, soft_wrap=False)
+    stream = sys.stderr if stderr else sys.stdout
+    terminal = stream.isatty()
+    return Console(stderr=stderr, highlight=False, soft_wrap=not terminal, width=None if terminal else 100_000,
+                   no_color=not terminal)
+
+
+def table(**options):
+    """A rich table: ruled on a terminal, plain space-separated columns in a pipe or a file
+    (no box characters, no truncation: columns never shrink below their contents)."""
+    import sys
+
+    from rich import box
+    from rich.table import Table
+
+    terminal = sys.stdout.isatty()
+    options.setdefault("show_edge", False)
+    options.setdefault("header_style", "bold")
+    table = Table(box=box.HEAVY_HEAD if terminal else box.SIMPLE_HEAD, **options)
+    return table
 
 
 def print_json(payload: Any) -> None:
@@ -57,14 +81,11 @@ def is_terminal(stream=None) -> bool:
 
 
 def fmt(value: float | None, digits: int = 3) -> str:
-    """A number for a table: 3 significant digits, thousands separated, '-' for None."""
-    if value is None:
-        return "-"
-    if value == 0:
-        return "0"
-    if abs(value) >= 1000:
-        return f"{value:,.0f}"
-    return f"{value:.{digits}g}"
+    """A number for a table: the worksheet's one formatter (:func:`exposure.numbers.number`),
+    so the same number reads the same in the CLI, the JSON-derived text and the PDF."""
+    from exposure.numbers import number
+
+    return number(value, digits)
 
 
 class Progress:

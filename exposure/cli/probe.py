@@ -16,6 +16,9 @@ from exposure.cli.common import (
     fmt,
     print_json,
 )
+from exposure.cli.common import (
+    table as make_table,
+)
 
 
 def parse_point(text: str) -> tuple[float, float, float]:
@@ -56,11 +59,10 @@ def probe(
         print_json(result)
         return
     from rich.markup import escape as esc
-    from rich.table import Table
 
     out = console()
     out.print(f"Point ({point[0]:g}, {point[1]:g}, {point[2]:g}) m on {esc(site.record.site.name)}, standard {site.table.key}")
-    table = Table(show_edge=False, header_style="bold")
+    table = make_table()
     for col in ("emitter", "MHz", "model", "S W/m²", "% GP limit", "% occ. limit"):
         table.add_column(col, justify="left" if col in ("emitter", "model") else "right")
     for e in result["emitters"]:

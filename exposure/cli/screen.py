@@ -318,7 +318,7 @@ def _text(r: dict[str, Any]) -> str:
         f"Screening at {fmt(r['frequency_mhz'])} MHz: EIRP {fmt(r['eirp_w'])} W, ERP {fmt(r['erp_w'])} W"
         + (f" (net power {fmt(r['net_power_w'])} W, gain {r['gain_dbi']:.1f} dBi)" if r["net_power_w"] is not None else ""),
         f"Limits, {r['citation']}: "
-        + ", ".join(f"{t.replace('_', ' ')} {fmt(v)} W/m2" for t, v in r["limits_w_m2"].items())
+        + ", ".join(f"{t.replace('_', ' ')} {fmt(v)} W/m²" for t, v in r["limits_w_m2"].items())
         + f"; ground reflection {r['reflection']} (x{r['reflection_factor']:g})",
         "",
         "Distance along the main beam to the limit [m]:",

@@ -15,6 +15,9 @@ from exposure.cli.common import (
     fmt,
     print_json,
 )
+from exposure.cli.common import (
+    table as make_table,
+)
 
 
 def validate(
@@ -91,7 +94,6 @@ def _summary(site, patterns: bool = False) -> dict:
 
 def _render(site, summary: dict) -> None:
     from rich.markup import escape as esc
-    from rich.table import Table
 
     record = site.record
     out = console()
@@ -101,7 +103,7 @@ def _render(site, summary: dict) -> None:
         f"{len(record.emitters)} emitters, {len(record.work_positions)} work positions.",
         markup=True,
     )
-    table = Table(show_edge=False, header_style="bold")
+    table = make_table()
     columns = ["id", "kind", "MHz", "net W", "gain dBi", "EIRP W", "ERP W", "duty"]
     with_patterns = "pattern_efficiency" in summary["emitters"][0]
     if with_patterns:

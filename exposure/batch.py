@@ -64,14 +64,24 @@ from exposure.results import SEVERITIES
 
 Status = Literal["done", "skipped", "failed"]
 STATUSES: tuple[str, ...] = ("done", "skipped", "failed")
-REPORT_NAME = "report.pdf"
-RESULT_NAME = "result.json"
+def report_name(site_id: str) -> str:
+    """A site's worksheet in its folder: ``<site-id>.pdf`` (every PDF of a portfolio says whose it is)."""
+    return f"{site_id}.pdf"
+
+
+def result_name(site_id: str) -> str:
+    """A site's result in its folder: ``<site-id>.json``."""
+    return f"{site_id}.json"
+
+
 SUMMARY_CSV = "summary.csv"
 SUMMARY_JSON = "summary.json"
 CSV_COLUMNS: tuple[str, ...] = (
     "file",
     "site_id",
     "verdict",
+    "site_name",
+    "standard",
     *(f"max_percent_{tier}" for tier in TIERS),
     *(f"flags_{severity}" for severity in SEVERITIES),
     "error",
@@ -131,7 +141,9 @@ class SiteRow:
     site_id: str | None
     status: Status
     verdict: str | None = None
-    max_percent: dict[str, float | None] | None = None  # tier -> max over accessible surfaces [%]
+    max_percent: dict[str, float | None] | None = None  # tier -> max over the surfaces judged against it [%]
+    site_name: str | None = None
+    standard: str | None = None
     flags: dict[str, int] | None = None  # severity -> count
     problems: tuple[str, ...] = ()
     seconds: float = 0.0
@@ -144,9 +156,10 @@ class SiteRow:
     @classmethod
     def from_result(cls, file: str, result: dict, status: Status, seconds: float) -> SiteRow:
         """The row of an assessment, from its JSON form (``Assessment.to_json()``)."""
-        accessible = [s for s in result["surfaces"] if s["access"] != "none"]
-        max_percent = {
-            tier: max((100.0 * s["max_ratio"][tier] for s in accessible), default=None) for tier in TIERS
+        max_percent = {  # a public figure from public surfaces only, an occupational one from occupational ones
+            tier: max((100.0 * s["max_ratio"][tier] for s in result["surfaces"] if s.get("governing_tier") == tier),
+                      default=None)
+            for tier in TIERS
         }
         flags = {sev: sum(1 for f in result["flags"] if f["severity"] == sev) for sev in SEVERITIES}
         return cls(
@@ -155,6 +168,8 @@ class SiteRow:
             status=status,
             verdict=result["verdict"],
             max_percent=max_percent,
+            site_name=result["site"].get("name"),
+            standard=result.get("standard"),
             flags=flags,
             seconds=seconds,
         )
@@ -163,6 +178,8 @@ class SiteRow:
         return {
             "file": self.file,
             "site_id": self.site_id,
+            "site_name": self.site_name,
+            "standard": self.standard,
             "verdict": self.verdict,
             "max_percent_of_limit": self.max_percent,
             "flags": self.flags,
@@ -178,6 +195,8 @@ class SiteRow:
             self.file,
             self.site_id or "",
             self.verdict or "",
+            self.site_name or "",
+            self.standard or "",
             *(_number(percent.get(tier)) for tier in TIERS),
             *(str(flags[sev]) if sev in flags else "" for sev in SEVERITIES),
             self.error,
@@ -298,7 +317,7 @@ def plan(files: Sequence[Path], options: BatchOptions) -> list[SiteTask | SiteRo
         if options.resume:
             finished = _finished_row(file, options.out_dir / site.id, site.sha256, fingerprint, options.report)
             if finished is not None:
-                for name in (RESULT_NAME, REPORT_NAME):  # a killed earlier run's temporary files
+                for name in (result_name(site.id), report_name(site.id)):  # a killed earlier run's temporary files
                     remove_leftovers(options.out_dir / site.id / name)
                 out.append(replace(finished, seconds=time.perf_counter() - start))
                 continue
@@ -348,12 +367,12 @@ def _file_sha256(path: Path) -> str | None:
 def _finished_row(file: str, folder: Path, sha256: str, fingerprint: str, report: bool) -> SiteRow | None:
     """The skipped row of a site whose saved result is of this very input and settings."""
     try:
-        result = json.loads((folder / RESULT_NAME).read_text(encoding="utf-8"))
+        result = json.loads((folder / result_name(folder.name)).read_text(encoding="utf-8"))
         if (
             result["input"]["sha256"] != sha256
             or result["tool_version"] != __version__
             or result["batch"]["fingerprint"] != fingerprint
-            or (report and not (folder / REPORT_NAME).is_file())
+            or (report and not (folder / report_name(folder.name)).is_file())
         ):
             return None
         return SiteRow.from_result(file, result, "skipped", 0.0)
@@ -399,7 +418,7 @@ def _assess_and_write(task: SiteTask) -> dict:
         "fingerprint": task.fingerprint,
         "standard_option": task.standard,
         "grid_m_option": task.grid_m,
-        "report": REPORT_NAME if task.report else None,
+        "report": report_name(site.id) if task.report else None,
     }
 
     folder = Path(task.out_dir) / site.id
@@ -408,21 +427,22 @@ def _assess_and_write(task: SiteTask) -> dict:
             write_report,  # renders in full, then writes atomically
         )
 
-        write_pair(folder / REPORT_NAME, lambda path: write_report(assessment, site, path),
-                   folder / RESULT_NAME, json_bytes(result))
+        write_pair(folder / report_name(site.id), lambda path: write_report(assessment, site, path),
+                   folder / result_name(site.id), json_bytes(result))
     else:
         _clear_site_folder(folder)
-        atomic_write_json(folder / RESULT_NAME, result)
+        atomic_write_json(folder / result_name(site.id), result)
     return result
 
 
 def _clear_site_folder(folder: Path) -> None:
     """Remove the commit mark first, then the report it would no longer vouch for (a report of
     an earlier input), and the temporary files a killed process (``kill -9``) left."""
-    (folder / RESULT_NAME).unlink(missing_ok=True)
-    (folder / REPORT_NAME).unlink(missing_ok=True)
-    for name in (RESULT_NAME, REPORT_NAME):
-        remove_leftovers(folder / name)
+    result, report = folder / result_name(folder.name), folder / report_name(folder.name)
+    result.unlink(missing_ok=True)
+    report.unlink(missing_ok=True)
+    for path in (result, report):
+        remove_leftovers(path)
 
 
 def _failed(file: str, site_id: str | None, problems: Sequence[str], start: float) -> SiteRow:

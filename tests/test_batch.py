@@ -36,6 +36,16 @@ BROKEN = {"broken-syntax.toml": "schema_version = 1\n[site\nid = 'x'\n"}
 runner = CliRunner()
 
 
+def pdf_of(folder: Path) -> Path:
+    """A site's worksheet in its batch folder: ``<site-id>/<site-id>.pdf``."""
+    return folder / f"{folder.name}.pdf"
+
+
+def result_of(folder: Path) -> Path:
+    """A site's result in its batch folder: ``<site-id>/<site-id>.json``."""
+    return folder / f"{folder.name}.json"
+
+
 def run(*args):
     return runner.invoke(app, ["batch", *[str(a) for a in args]])
 
@@ -128,8 +138,8 @@ def test_local_run_assesses_every_good_site_and_reports_both_errors(portfolio, l
         assert row["status"] == "done" and row["error"] == "", row
         assert row["verdict"] in ("compliant", "verify-by-measurement", "mitigation-required")
         folder = out / row["site_id"]
-        assert (folder / "report.pdf").read_bytes().startswith(b"%PDF")
-        saved = json.loads((folder / "result.json").read_text())
+        assert pdf_of(folder).read_bytes().startswith(b"%PDF")
+        saved = json.loads(result_of(folder).read_text())
         digest = hashlib.sha256(Path(row["file"]).read_bytes()).hexdigest()
         assert saved["input"]["sha256"] == digest and saved["tool_version"] == __version__
         assert saved["verdict"] == row["verdict"]
@@ -148,18 +158,20 @@ def test_batch_result_is_the_single_site_assessment(portfolio, local_run):
     out, _ = local_run
     path = sites / f"{SAMPLE_SITES[0].stem}-v2.json"
     alone = assess(load_site(path), grid_m=2.0).to_json()
-    saved = json.loads((out / alone["site"]["id"] / "result.json").read_text())
+    saved = json.loads(result_of(out / alone["site"]["id"]).read_text())
     assert saved["verdict"] == alone["verdict"]
     assert saved["surfaces"] == alone["surfaces"]
     row = next(r for r in json.loads((out / "summary.json").read_text())["sites"] if r["file"] == str(path))
     for tier in ("general_public", "occupational"):
-        expected = max(100 * s["max_ratio"][tier] for s in alone["surfaces"] if s["access"] != "none")
-        assert row["max_percent_of_limit"][tier] == pytest.approx(expected, rel=1e-12)
+        judged = [100 * s["max_ratio"][tier] for s in alone["surfaces"] if s["governing_tier"] == tier]
+        expected = max(judged) if judged else None
+        assert row["max_percent_of_limit"][tier] == (pytest.approx(expected, rel=1e-12) if judged else None)
+    assert row["site_name"] == alone["site"]["name"] and row["standard"] == alone["standard"]
 
 
 def test_summary_row_definitions():
-    """Max % of limit per tier = 100 × the highest max_ratio over surfaces people can reach
-    (access 'none' is reported, not judged, as in the site record's definition); flags are
+    """Max % of limit per tier = 100 × the highest max_ratio over the surfaces judged against that
+    tier (access 'none' is reported, not judged, as in the site record's definition); flags are
     counted by severity. Hand-made result, values chosen by hand."""
     result = {
         "site": {"id": "x"},
@@ -171,8 +183,13 @@ def test_summary_row_definitions():
         ],
         "flags": [{"severity": "measure"}, {"severity": "info"}, {"severity": "measure"}],
     }
+    for s, tier in zip(result["surfaces"], ("general_public", "occupational", None)):
+        s["governing_tier"] = tier
     row = SiteRow.from_result("x.toml", result, "done", 1.0)
-    assert row.max_percent == {"general_public": 200.0, "occupational": 40.0}
+    # since the rules issue each tier's figure comes from the surfaces judged against that tier
+    # (public surfaces for the public limit): 50 % public, 40 % occupational; before, the public
+    # figure took the occupational roof's 200 %
+    assert row.max_percent == {"general_public": 50.0, "occupational": 40.0}
     assert row.flags == {"info": 1, "measure": 2, "mitigate": 0}
     assert dict(zip(CSV_COLUMNS, row.to_csv()))["max_percent_occupational"] == "40"
 
@@ -205,7 +222,7 @@ def test_dask_cluster_gives_the_local_summary(portfolio, local_run, tmp_path):
     assert rows_without_seconds(out / "summary.json") == rows_without_seconds(local_out / "summary.json")
     for row in read_csv(out / "summary.csv"):
         if row["status"] == "done":
-            assert (out / row["site_id"] / "report.pdf").is_file()
+            assert pdf_of(out / row["site_id"]).is_file()
     assert leftovers(out) == []
 
 
@@ -238,7 +255,7 @@ def test_resume_skips_finished_sites(portfolio, local_run, tmp_path):
     shutil.copytree(local_run[0], out)
     first = read_csv(out / "summary.csv")
     done = [r for r in first if r["status"] == "done"]
-    mtimes = {r["site_id"]: (out / r["site_id"] / "result.json").stat().st_mtime_ns for r in done}
+    mtimes = {r["site_id"]: result_of(out / r["site_id"]).stat().st_mtime_ns for r in done}
 
     again = run(sites, "-o", out, "--resume", "--jobs", 1, *GRID)
     assert again.exit_code == 2, again.output  # the broken records fail again
@@ -246,17 +263,17 @@ def test_resume_skips_finished_sites(portfolio, local_run, tmp_path):
     assert [r["status"] for r in rows] == ["skipped" if r["status"] == "done" else "failed" for r in first]
     keep = ("verdict", "max_percent_general_public", "max_percent_occupational", "flags_mitigate")
     assert [[r[k] for k in keep] for r in rows] == [[r[k] for k in keep] for r in first]
-    assert {s: (out / s / "result.json").stat().st_mtime_ns for s in mtimes} == mtimes
+    assert {s: result_of(out / s).stat().st_mtime_ns for s in mtimes} == mtimes
 
     # A missing report, another tool version or another grid: that site runs again.
-    (out / done[0]["site_id"] / "report.pdf").unlink()
-    stale = out / done[1]["site_id"] / "result.json"
+    pdf_of(out / done[0]["site_id"]).unlink()
+    stale = result_of(out / done[1]["site_id"])
     stale.write_text(stale.read_text().replace(f'"tool_version": "{__version__}"', '"tool_version": "0.0.0"'))
     again = run(sites, "-o", out, "--resume", "--jobs", 1, *GRID)
     status = {r["site_id"]: r["status"] for r in read_csv(out / "summary.csv") if r["site_id"]}
     assert status[done[0]["site_id"]] == status[done[1]["site_id"]] == "done"
     assert [s for s, v in status.items() if v == "done"] == [done[0]["site_id"], done[1]["site_id"]]
-    assert (out / done[0]["site_id"] / "report.pdf").is_file()
+    assert pdf_of(out / done[0]["site_id"]).is_file()
 
     # Another grid, or an edited pattern file the record names: that site runs again.
     one = copy_samples(tmp_path / "one")
@@ -267,7 +284,7 @@ def test_resume_skips_finished_sites(portfolio, local_run, tmp_path):
     args = (one, "-o", out, "--resume", "--jobs", 1, "--grid-m", 3, "--no-report", "--quiet")
     assert run(*args).exit_code == 0
     assert read_csv(out / "summary.csv")[0]["status"] == "done"
-    assert not (out / site_id / "report.pdf").exists()  # never beside a newer result
+    assert not pdf_of(out / site_id).exists()  # never beside a newer result
     assert run(*args).exit_code == 0
     assert read_csv(out / "summary.csv")[0]["status"] == "skipped"
     with (one / "patterns" / "alder-739-panel.csv").open("a") as handle:
@@ -297,7 +314,7 @@ def test_crash_while_writing_a_report_leaves_no_partial_output(tmp_path, monkeyp
         def write_half(handle):
             handle.write(b"%PDF-1.4 half a report")
             handle.flush()
-            assert list(Path(path).parent.glob(".report.pdf.*.part"))  # it was under way
+            assert list(Path(path).parent.glob(f".{Path(path).name}.*.part"))  # it was under way
             raise crash("simulated crash in the middle of the report")
 
         return atomic_write(path, write_half)
@@ -305,7 +322,7 @@ def test_crash_while_writing_a_report_leaves_no_partial_output(tmp_path, monkeyp
     monkeypatch.setattr(exposure.report, "write_report", crashing_write_report)
     result = run(sites, "-o", out, "--jobs", 1, *GRID)
     folder = out / victim
-    assert not (folder / "report.pdf").exists() and not (folder / "result.json").exists()
+    assert not pdf_of(folder).exists() and not result_of(folder).exists()
     assert leftovers(out) == []
     assert "Traceback" not in result.output
     if crash is KeyboardInterrupt:
@@ -323,7 +340,7 @@ def test_crash_while_writing_a_report_leaves_no_partial_output(tmp_path, monkeyp
     assert rerun.exit_code == 0, rerun.output
     statuses = {r["site_id"]: r["status"] for r in read_csv(out / "summary.csv")}
     assert statuses[victim] == "done"
-    assert (folder / "report.pdf").read_bytes().startswith(b"%PDF") and (folder / "result.json").is_file()
+    assert pdf_of(folder).read_bytes().startswith(b"%PDF") and result_of(folder).is_file()
 
 
 def test_duplicate_site_ids(tmp_path):
@@ -348,13 +365,13 @@ def test_duplicate_site_ids(tmp_path):
     assert [(Path(r["file"]).name, r["status"]) for r in rows] == [("a.toml", "done"), ("b.json", "failed")]
     assert rows[1]["error"].startswith(f"duplicate site id '{site_id}', also in {first}")
     assert f"error: {second}: duplicate site id" in result.stderr
-    saved = json.loads((out / site_id / "result.json").read_text())
+    saved = json.loads(result_of(out / site_id).read_text())
     assert saved["site"]["name"] == tomllib.loads(sample.read_text())["site"]["name"]
 
     result = run(second, first, "-o", out, "--no-report", "--jobs", 1, *GRID)
     rows = read_csv(out / "summary.csv")
     assert [(Path(r["file"]).name, r["status"]) for r in rows] == [("b.json", "done"), ("a.toml", "failed")]
-    assert json.loads((out / site_id / "result.json").read_text())["site"]["name"] == data["site"]["name"]
+    assert json.loads(result_of(out / site_id).read_text())["site"]["name"] == data["site"]["name"]
 
 
 @pytest.mark.parametrize(

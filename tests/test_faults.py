@@ -65,9 +65,10 @@ def pdf_sha(path: Path) -> str | None:
     return None
 
 
-def assert_pairs_consistent(folder: Path, pdf_name: str, json_name: str) -> None:
-    for pdf in folder.rglob(pdf_name):
-        beside = pdf.with_name(json_name)
+def assert_pairs_consistent(folder: Path, pdf_name: str | None = None, json_name: str | None = None) -> None:
+    """Every PDF beside the JSON of the same input (by default, batch folders: <id>/<id>.pdf and .json)."""
+    for pdf in folder.rglob(pdf_name or "*.pdf"):
+        beside = pdf.with_name(json_name) if json_name else pdf.with_suffix(".json")
         assert beside.exists(), f"{pdf} without its JSON"
         assert json.loads(beside.read_text())["input"]["sha256"] == pdf_sha(pdf), f"{pdf} and {beside} differ"
 
@@ -132,11 +133,11 @@ def test_batch_killed_at_random_moments(site, tmp_path, sig):
         for w in still:
             os.kill(w, signal.SIGKILL)
         assert not still, f"workers {still} outlived the batch by 5 s"
-        assert_pairs_consistent(out, "report.pdf", "result.json")
+        assert_pairs_consistent(out)
     result = subprocess.run([*EXPOSURE, "batch", *inputs, "-o", out, "--resume", *common], capture_output=True)
     assert result.returncode == 0, result.stderr
     assert leftovers(out) == []
-    for name in ("report.pdf", "result.json"):
-        for expected in clean.rglob(name):
+    for name in ("*/*.pdf", "*/*.json"):
+        for expected in clean.glob(name):
             got = out / expected.relative_to(clean)
             assert got.read_bytes() == expected.read_bytes(), got

@@ -43,10 +43,10 @@ def batch(
     scheduler_timeout: Annotated[
         float, typer.Option("--scheduler-timeout", min=0.1, help="Seconds to wait for the scheduler.")
     ] = 10.0,
-    no_report: Annotated[bool, typer.Option("--no-report", help="Write result.json only, no PDF.")] = False,
+    no_report: Annotated[bool, typer.Option("--no-report", help="Write each site's JSON only, no PDF.")] = False,
     resume: Annotated[
         bool,
-        typer.Option("--resume", help="Skip sites whose result.json matches the input, tool version and settings."),
+        typer.Option("--resume", help="Skip sites whose saved JSON matches the input, tool version and settings."),
     ] = False,
     standard: StandardOption = None,
     limits_file: LimitsFileOption = None,
@@ -57,7 +57,7 @@ def batch(
 ) -> None:
     """Assess many sites: one folder each, one summary.
 
-    Writes DIR/<site-id>/report.pdf and DIR/<site-id>/result.json for each site, then
+    Writes DIR/<site-id>/<site-id>.pdf and DIR/<site-id>/<site-id>.json for each site, then
     DIR/summary.csv and DIR/summary.json with one row per input, in input order: verdict,
     the highest % of each tier's limit on accessible surfaces, flag counts, error, seconds
     and status (done, skipped, failed).
@@ -69,7 +69,7 @@ def batch(
     is a failed row ("duplicate site id 'x', also in FILE") and nothing of it is written.
     The same file named twice is one input.
 
-    --resume skips a site whose result.json has the same input sha256, tool version, limit
+    --resume skips a site whose saved JSON has the same input sha256, tool version, limit
     table, pattern files and --grid-m, and whose report.pdf exists (unless --no-report).
     A report of an earlier input is never left beside a new result (--no-report removes it).
 

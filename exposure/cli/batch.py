@@ -59,7 +59,8 @@ def batch(
 
     Writes DIR/<site-id>/<site-id>.pdf and DIR/<site-id>/<site-id>.json for each site, then
     DIR/summary.csv and DIR/summary.json with one row per input, in input order: verdict,
-    the highest % of each tier's limit on accessible surfaces, flag counts, error, seconds
+    site name, standard, the highest % of each tier's limit on the surfaces judged against it,
+    flag counts, error, seconds
     and status (done, skipped, failed).
     A record that fails is reported in its row and on stderr and the others go on; the
     exit code is 2 if any input failed, else 0. Every file is written atomically, so an
@@ -70,7 +71,7 @@ def batch(
     The same file named twice is one input.
 
     --resume skips a site whose saved JSON has the same input sha256, tool version, limit
-    table, pattern files and --grid-m, and whose report.pdf exists (unless --no-report).
+    table, pattern files and --grid-m, and whose PDF exists (unless --no-report).
     A report of an earlier input is never left beside a new result (--no-report removes it).
 
     --scheduler tcp://HOST:PORT runs the sites on a Dask distributed cluster: its workers

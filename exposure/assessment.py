@@ -19,7 +19,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from exposure import __version__, numbers
+from exposure import __version__, aperture, numbers
 from exposure.antenna import Antenna
 from exposure.field import (
     REFLECTION_FACTORS,
@@ -551,7 +551,7 @@ def distance_to_prism(point: Sequence[float], surface, z0: float, z1: float) -> 
     return math.hypot(horizontal, vertical)
 
 
-def _validity_flags(site: LoadedSite, body_height: float) -> list[Flag]:
+def _validity_flags(site: LoadedSite, body_height: float, limits: SiteLimits, measure_above: float) -> list[Flag]:
     flags = []
     accessible = [s for s in site.record.surfaces if s.access != "none"]
     for antenna, emitter in zip(site.antennas, site.record.emitters):
@@ -588,7 +588,13 @@ def _validity_flags(site: LoadedSite, body_height: float) -> list[Flag]:
             ))
         if antenna.kind == "dish" and antenna.diameter_m:
             crossing = _dish_beam_crossing(antenna, accessible, body_height)
-            if crossing:
+            # only where the on-axis near-field bound (OET 65, with the site's reflection) could
+            # reach the measurement threshold of the crossed surface's limit: a 0.1 W link dish is not a finding
+            i = site.antennas.index(antenna)
+            bound = float(aperture.near_field_power_density(antenna.net_power_w, antenna.diameter_m,
+                                                            antenna.aperture_efficiency)) * reflection_factor(site)
+            tier = ACCESS_TIER.get(next((s.access for s in accessible if s.name == crossing), "occupational"), "occupational")
+            if crossing and bound >= measure_above * float(limits.limit[tier][i]):
                 flags.append(Flag(
                     "dish-near-field-crossing", "measure",
                     f"{antenna.id}: the near-field beam of the {antenna.diameter_m:g} m dish (out to "
@@ -801,7 +807,7 @@ def _flags(site, surfaces, work, emitters, limits, measure_above) -> list[Flag]:
                 f"{', '.join(w.power_down)} ({', '.join(w.power_down_operators)}) before work there.",
                 emitters=w.power_down, work_position=w.name,
             ))
-    flags.extend(_validity_flags(site, site.record.site.body_height_m))
+    flags.extend(_validity_flags(site, site.record.site.body_height_m, limits, measure_above))
     for i, antenna in enumerate(site.antennas):
         if limits.derived[i]:
             flags.append(Flag(

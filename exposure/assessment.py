@@ -67,24 +67,54 @@ class SiteLimits:
     """Per-emitter limits [W/m²] for each tier, and their reciprocals for the ratio sums."""
 
     limit: dict[str, np.ndarray]
-    derived: np.ndarray  # True where S was derived from E (the table gives only fields)
+    derived: np.ndarray  # True where S was derived from E and H (the table gives only fields)
+    local: dict[str, np.ndarray] | None = None  # the local (spatial-peak) criterion's limits, where the table has one
 
     @property
     def inverse(self) -> dict[str, np.ndarray]:
         return {tier: 1.0 / values for tier, values in self.limit.items()}
 
+    @property
+    def inverse_local(self) -> dict[str, np.ndarray] | None:
+        return None if self.local is None else {tier: 1.0 / values for tier, values in self.local.items()}
 
-def site_limits(site: LoadedSite) -> SiteLimits:
-    """The comparison power-density limit of every emitter at its frequency, per tier."""
-    limit = {tier: np.empty(len(site.antennas)) for tier in TIERS}
-    derived = np.zeros(len(site.antennas), dtype=bool)
-    for i, antenna in enumerate(site.antennas):
-        at = site.table.at(antenna.frequency_mhz)
+
+def _limits_of(table, antennas) -> tuple[dict[str, np.ndarray], np.ndarray]:
+    limit = {tier: np.empty(len(antennas)) for tier in TIERS}
+    derived = np.zeros(len(antennas), dtype=bool)
+    for i, antenna in enumerate(antennas):
+        at = table.at(antenna.frequency_mhz)
         for tier in TIERS:
             value, was_derived = at[tier].comparison_power_density_w_m2()
             limit[tier][i] = value
             derived[i] |= was_derived
-    return SiteLimits(limit=limit, derived=derived)
+    return limit, derived
+
+
+def site_limits(site: LoadedSite) -> SiteLimits:
+    """The comparison power-density limit of every emitter at its frequency, per tier, and
+    those of the table's local criterion where it has one (ICNIRP 2020 Table 6)."""
+    limit, derived = _limits_of(site.table, site.antennas)
+    local_table = site.table.local()
+    local = None if local_table is None else _limits_of(local_table, site.antennas)[0]
+    return SiteLimits(limit=limit, derived=derived, local=local)
+
+
+def combined_ratio(limits: SiteLimits, density, density_peak, evaluation: str, tier: str):
+    """The total ratio of one tier over the body height (last axis), both criteria applied.
+
+    Returns ``(total over heights, reduced, local_governs)``: the whole-body criterion as the
+    site evaluates it (peak or spatial average of Σ S_i/S_L,i), and, where the table has a
+    local criterion, the spatial peak of Σ S_i/S_L,local,i from the spatial-peak model, the
+    larger of the two per place (``local_governs`` says where the local one is larger).
+    """
+    total = np.tensordot(limits.inverse[tier], density, axes=1)
+    reduced = reduce_over_height(total, evaluation)
+    if limits.local is None:
+        return total, reduced, np.zeros(np.shape(reduced), dtype=bool)
+    local = np.tensordot(limits.inverse_local[tier], density_peak, axes=1).max(axis=-1)
+    governs = local > reduced
+    return total, np.maximum(reduced, local), governs
 
 
 def reflection_factor(site: LoadedSite) -> float:
@@ -132,7 +162,10 @@ def body_column(site: LoadedSite, x: float, y: float, z0: float, limits: SiteLim
     density = emitter_power_density(site, points)  # (n_e, n_h)
     ratio = {t: density / limits.limit[t][:, None] for t in TIERS}
     evaluation = site.record.site.evaluation
-    totals = {t: float(reduce_over_height(r.sum(axis=0), evaluation)) for t, r in ratio.items()}
+    density_peak = _peak_density(site, points, density, evaluation, limits)
+    totals = {t: float(combined_ratio(limits, density, density_peak, evaluation, t)[1]) for t in TIERS}
+    if density_peak is not None:  # each emitter's ratio to the local limit, for who must power down
+        ratio.update({f"{t}_local": density_peak / limits.local[t][:, None] for t in TIERS})
     return ratio, totals
 
 
@@ -173,6 +206,9 @@ def probe(site: LoadedSite, point_m: Sequence[float], standing: bool | None = No
     inside = [a.id for a in site.antennas if bool(element_zone(a, point)[0])]
     out = {"point_m": [float(v) for v in point[0]], "standard": site.table.key, "emitters": emitters, "total_ratio": total,
            "element_zone": inside}
+    if limits.local is not None:  # the local (spatial-peak) criterion at the point, from the spatial-peak model
+        peak = _peak_density(site, point, density[:, None], site.record.site.evaluation, limits)[:, 0]
+        out["total_ratio_local"] = {tier: float(np.sum(peak / limits.local[tier])) for tier in TIERS}
     x, y, z = (float(v) for v in point[0])
     surface = standing_surface(site, x, y, z)
     if standing or (standing is None and surface is not None):
@@ -226,6 +262,19 @@ class _Columns:
     y: np.ndarray
     ratio: dict[str, np.ndarray]  # tier -> reduced total per column
     at_z: dict[str, np.ndarray]  # tier -> height of the column's peak (its base for averages)
+    local_governs: dict[str, np.ndarray] | None = None  # tier -> the local criterion gives the ratio
+
+
+def _peak_density(site, points, density, evaluation: str, limits: SiteLimits):
+    """The spatial-peak model's power density at *points* for a local criterion: the density
+    already computed where the site evaluates peaks, a second evaluation where it averages
+    (the spatial-peak margin belongs to the peak); None where there is no local criterion."""
+    if limits.local is None:
+        return None
+    if evaluation == "peak":
+        return density
+    factor = reflection_factor(site)
+    return np.stack([power_density(a, points, reflection=factor, evaluation="peak") for a in site.antennas])
 
 
 def element_cells(antennas: Sequence[Antenna], cx: np.ndarray, cy: np.ndarray, z_low: float, z_high: float,
@@ -269,6 +318,7 @@ def _evaluate_columns(site, surface, limits: SiteLimits, offsets, cx, cy, acc, p
     factor = reflection_factor(site)
     ratio = {tier: np.empty(len(cx)) for tier in TIERS}
     at_z = {tier: np.empty(len(cx)) for tier in TIERS}
+    local_governs = {tier: np.zeros(len(cx), dtype=bool) for tier in TIERS}
     chunk = max(1, POINT_BUDGET // (n_e * n_h))
     for start in range(0, len(cx), chunk):
         sl = slice(start, start + chunk)
@@ -283,10 +333,11 @@ def _evaluate_columns(site, surface, limits: SiteLimits, offsets, cx, cy, acc, p
             if progress:
                 done_total[0] += n_c * n_h
                 progress(done_total[0], done_total[1])
+        density_peak = _peak_density(site, points, density, evaluation, limits)
         for tier in TIERS:
-            total = np.tensordot(inverse[tier], density, axes=1)  # Σ_i S_i / S_L,i: (n_c, n_h)
-            reduced = reduce_over_height(total, evaluation)
+            total, reduced, governs = combined_ratio(limits, density, density_peak, evaluation, tier)
             ratio[tier][sl] = reduced
+            local_governs[tier][sl] = governs
             at_z[tier][sl] = z[np.argmax(total, axis=1)] if evaluation == "peak" else z[0]
             exceeding = reduced > 1.0
             if exceeding.any():
@@ -294,7 +345,7 @@ def _evaluate_columns(site, surface, limits: SiteLimits, offsets, cx, cy, acc, p
                 np.maximum(acc.exceed_share[tier], share, out=acc.exceed_share[tier])
             if tier == governing and surface.access == "public":
                 _update_headroom(acc.headroom, density * inverse[tier][:, None, None], total, reduced, evaluation)
-    return _Columns(cx, cy, ratio, at_z)
+    return _Columns(cx, cy, ratio, at_z, local_governs)
 
 
 HOT_SPOT_FROM_M = 0.1
@@ -381,8 +432,12 @@ def _surface_zones(site, surface, grid, cells: _Columns, spots: _Columns, limits
         points[..., 1] = y[sl, None]
         points[..., 2] = surface.elevation_m + offsets[None, :]
         density = emitter_power_density(site, points)  # (n_e, n_places, n_h)
+        density_peak = _peak_density(site, points, density, evaluation, limits)
         for tier in TIERS:
-            places[tier]["shares"][:, sl] = reduce_over_height(density * limits.inverse[tier][:, None, None], evaluation)
+            share = reduce_over_height(density * limits.inverse[tier][:, None, None], evaluation)
+            if density_peak is not None:  # an emitter's share of the local limit, where it is larger
+                np.maximum(share, (density_peak * limits.inverse_local[tier][:, None, None]).max(axis=-1), out=share)
+            places[tier]["shares"][:, sl] = share
     return zones_of_surface(surface.name, polygon, grid, places, [a.id for a in site.antennas],
                             [e.operator for e in site.record.emitters], grid_m)
 
@@ -423,14 +478,16 @@ def _surface_result(site, surface, grid, cells: _Columns, spots: _Columns, acc) 
         grid.y_m[1] - grid.y_m[0] if len(grid.y_m) > 1 else site.record.site.grid_m
     )
     ids = [a.id for a in site.antennas]
-    max_ratio, max_at, area_above, regions, responsible = {}, {}, {}, {}, {}
+    max_ratio, max_at, area_above, regions, responsible, criterion = {}, {}, {}, {}, {}, {}
+    has_local = site.table.local_table is not None
     for tier in TIERS:
         # The maximum over the grid cells and the hot spots next to the antennas.
         best = max(
-            ((c.ratio[tier][k], c.x[k], c.y[k], c.at_z[tier][k])
+            ((c.ratio[tier][k], c.x[k], c.y[k], c.at_z[tier][k], bool(c.local_governs[tier][k]))
              for c in (cells, spots) if len(c.x) for k in [int(np.argmax(c.ratio[tier]))]),
             key=lambda item: item[0],
         )
+        criterion[tier] = ("local" if best[4] else "whole-body") if has_local else "single"
         max_ratio[tier] = float(best[0])
         max_at[tier] = (round(float(best[1]), 3), round(float(best[2]), 3), round(float(best[3]), 3))
         area_above[tier] = float(np.sum(grid.ratio[tier] > 1.0) * cell_area)
@@ -456,6 +513,8 @@ def _surface_result(site, surface, grid, cells: _Columns, spots: _Columns, acc) 
         responsible=responsible,
         headroom_factor=headroom,
         element_zone_area_m2=float(np.sum(grid.element_zone) * cell_area),
+        governing_criterion=criterion[governing] if governing else None,
+        criterion_at_max=criterion,
         grid=grid,
     )
 
@@ -519,12 +578,20 @@ def _work_position(site, position, limits: SiteLimits, offsets) -> WorkPositionR
     evaluation = site.record.site.evaluation
     ratio, totals = body_column(site, position.x_m, position.y_m, position.z_m, limits)
     occupational = ratio["occupational"]
+    local = ratio.get("occupational_local")  # the local criterion's per-emitter ratios, if any
+
+    def total(keep) -> float:
+        value = float(reduce_over_height(occupational[keep].sum(axis=0), evaluation))
+        return value if local is None else max(value, float(local[keep].sum(axis=0).max(initial=0.0)))
+
     contributions = reduce_over_height(occupational, evaluation, axis=1)
+    if local is not None:
+        contributions = np.maximum(contributions, local.max(axis=1))
     order = np.argsort(-contributions, kind="stable")
     remaining = np.ones(len(site.antennas), dtype=bool)
     power_down: list[int] = []
     for i in order:
-        if reduce_over_height(occupational[remaining].sum(axis=0), evaluation) <= 1.0:
+        if total(remaining) <= 1.0:
             break
         remaining[i] = False
         power_down.append(int(i))
@@ -849,6 +916,16 @@ def _assumptions(site, grid_m, offsets, factor) -> list[Assumption]:
                    "and boundary polygons come from the grid."),
         Assumption("Summation", "Total exposure ratio = Σ S_i / S_L,i over all emitters and frequencies, per tier; "
                    "compliant where ≤ 1."),
+        Assumption("Criteria", (f"Both criteria of {site.table.source} are applied: the whole-body reference levels "
+                   f"({site.table.table}) to the {'peak' if info.evaluation == 'peak' else 'spatial average'} over the "
+                   f"body height, and the local ones ({site.table.local().table}) to the spatial peak of the spatial-peak "
+                   "model; at each place the larger ratio governs, and each surface says which."
+                   if site.table.local_table else
+                   f"One criterion: {site.table.citation()}, applied to the "
+                   f"{'peak' if info.evaluation == 'peak' else 'spatial average'} over the body height.")
+                   + " Where the table gives E and H but no power density (below 30 MHz), the stricter plane-wave "
+                   "equivalent of the two is used (E and H judged separately); the near field there needs E and H "
+                   "measured."),
         Assumption("Left out", "Obstructions, parapets and people's bodies are not modelled (conservative: they "
                    "shield); nearby sites and emitters not in the record are not included (not conservative)."),
         Assumption("Patterns", "Parametric envelopes stand in for measured patterns: the 3GPP TR 36.814/38.901 "

@@ -16,8 +16,12 @@ Conventions
   lower of the two bands' comparison values. Where the source is continuous the two
   differ only by the source's rounding; where it is not, this is the conservative choice.
   For the averaging time the shorter one is taken.
-* Where a table gives only E (ICNIRP 2020 below 30 MHz), the power density used for ratios
-  is the plane-wave equivalent :math:`E^2/Z_0`, marked as derived.
+* Where a table gives E and H but no power density (ICNIRP 2020 below 30 MHz), the power
+  density used for ratios is the stricter plane-wave equivalent, :math:`\min(E^2/Z_0, Z_0H^2)`,
+  marked as derived: E and H are judged separately.
+* A table may name a second criterion that must also be met (``criterion = "whole-body"``
+  with ``local_table``): ICNIRP 2020's local reference levels (Table 6, spatial peak,
+  6 min) beside its whole-body ones (Table 5).
 
 References
 ----------
@@ -150,14 +154,16 @@ class TierLimit:
 
         Notes
         -----
-        .. math:: S = E^2 / Z_0
+        .. math:: S = \min(E^2 / Z_0,\ Z_0 H^2)
 
-        with :math:`Z_0` = :data:`exposure.units.FREE_SPACE_IMPEDANCE` (OET Bulletin 65).
+        with :math:`Z_0` = :data:`exposure.units.FREE_SPACE_IMPEDANCE` (OET Bulletin 65): E and
+        H judged separately, through the far-field relation (ICNIRP 2020 below 30 MHz: neither
+        may be exceeded; the near field there needs E and H measured).
         On a shared band edge it is the lower of the two bands' values.
         """
         if self._comparison is not None:
             return self._comparison
-        return _comparison(self.power_density, self.e_field)
+        return _comparison(self.power_density, self.e_field, self.h_field)
 
 
 @dataclass(frozen=True)
@@ -271,6 +277,17 @@ class LimitTable:
     f_max_mhz: float
     labels: dict[str, str] = field(repr=False, compare=False, hash=False)
     bands: dict[str, tuple[Band, ...]] = field(repr=False, compare=False, hash=False)
+    criterion: str = "single"
+    local_table: str | None = None
+
+    def local(self) -> LimitTable | None:
+        """The table of the local (spatial-peak) criterion that must also be met, or None.
+
+        ICNIRP 2020 requires both its whole-body reference levels (Table 5, averaged over
+        the body and 30 min) and its local ones (Table 6, spatial peak, 6 min); the
+        whole-body file names the local one by ``local_table``.
+        """
+        return None if self.local_table is None else _load_builtin(self.local_table)
 
     def citation(self) -> str:
         """Reference line for reports, e.g. ``47 CFR § 1.1310(e)(1), Table 1 (rules of 2019)``.
@@ -434,15 +451,16 @@ def _load_builtin(key: str) -> LimitTable:
 
 
 def _builtin_path(key: str) -> Path:
-    """Where the built-in file of *key* is: in the wheel, or in a source checkout."""
-    name = f"{key}.toml"
-    packaged = resources.files("exposure").joinpath("_limits", name)  # wheel: exposure/_limits/
-    if packaged.is_file():
-        return Path(str(packaged))
-    checkout = Path(__file__).resolve().parent.parent / "limits" / name  # editable: <repo>/limits/
-    if checkout.is_file():
-        return checkout
-    raise FileNotFoundError(f"built-in limit table {name} is missing from the installation")
+    """Where the built-in file of *key* is: in the wheel, or in a source checkout; a second
+    criterion's table (a whole-body table's ``local_table``) lives in ``limits/local/``."""
+    for name in (f"{key}.toml", f"local/{key}.toml"):
+        packaged = resources.files("exposure").joinpath("_limits", *name.split("/"))  # wheel: exposure/_limits/
+        if packaged.is_file():
+            return Path(str(packaged))
+        checkout = Path(__file__).resolve().parent.parent / "limits" / name  # editable: <repo>/limits/
+        if checkout.is_file():
+            return checkout
+    raise FileNotFoundError(f"built-in limit table {key}.toml is missing from the installation")
 
 
 # --------------------------------------------------------------------------------------
@@ -515,7 +533,15 @@ class _TableModel(_Strict):
     status: Status
     status_note: NonEmpty
     frequency_unit: Literal["MHz"]
+    criterion: Literal["single", "whole-body", "local"] = "single"
+    local_table: Annotated[str, Field(pattern=r"^[a-z0-9][a-z0-9._-]*$")] | None = None
     tiers: _TiersModel
+
+    @model_validator(mode="after")
+    def _local_goes_with_whole_body(self):
+        if self.local_table is not None and self.criterion != "whole-body":
+            raise ValueError("local_table is for a whole-body table (criterion = \"whole-body\")")
+        return self
 
 
 def _parse(data: bytes, path: Path) -> LimitTable:
@@ -634,6 +660,8 @@ def _build(model: _TableModel, path: Path) -> LimitTable:
         f_max_mhz=first[-1].f_max_mhz,
         labels=labels,
         bands=bands,
+        criterion=model.criterion,
+        local_table=model.local_table,
     )
 
 
@@ -653,13 +681,20 @@ def _law(entry: _EntryModel) -> PowerLaw:
 # Band edges and the comparison value
 
 
-def _comparison(power_density: Quantity, e_field: Quantity) -> tuple[float, bool]:
-    """The table's power density, else the plane-wave equivalent E²/Z0 (derived)."""
+def _comparison(power_density: Quantity, e_field: Quantity, h_field: Quantity | None = None) -> tuple[float, bool]:
+    """The table's power density, else the stricter plane-wave equivalent of its field limits,
+    min(E²/Z0, Z0·H²) (derived): E and H judged separately, each through the far-field
+    relation of the models' power density (ICNIRP 2020: neither may be exceeded)."""
     if power_density.value is not None:
         return power_density.value, False
+    candidates = []
     if e_field.value is not None:
-        return e_field.value**2 / FREE_SPACE_IMPEDANCE, True
-    raise InputError("the table gives neither a power density nor an E-field limit here")
+        candidates.append(e_field.value**2 / FREE_SPACE_IMPEDANCE)
+    if h_field is not None and h_field.value is not None:
+        candidates.append(FREE_SPACE_IMPEDANCE * h_field.value**2)
+    if candidates:
+        return min(candidates), True
+    raise InputError("the table gives neither a power density nor a field limit here")
 
 
 def _lower(a: Quantity, b: Quantity) -> Quantity:

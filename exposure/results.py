@@ -153,6 +153,8 @@ class SurfaceResult:
     headroom_factor: float | None  # power scale of every emitter before the governing ratio reaches 1
     element_zone_area_m2: float = 0.0  # where a standing person reaches an emitter's element zone
     holes: tuple[tuple[tuple[float, float], ...], ...] = ()  # areas inside the outline nobody stands on
+    governing_criterion: str | None = None  # "single", "whole-body" or "local": what gives the governing maximum
+    criterion_at_max: dict[str, str] = field(default_factory=dict)  # tier -> the criterion of that maximum
     grid: SurfaceGrid | None = field(default=None, compare=False, repr=False)
 
     def to_json(self) -> dict:
@@ -171,6 +173,8 @@ class SurfaceResult:
             "responsible_emitters": self.responsible,
             "headroom_factor": self.headroom_factor,
             "element_zone_area_m2": self.element_zone_area_m2,
+            "governing_criterion": self.governing_criterion,
+            "criterion_at_max": self.criterion_at_max,
         }
 
 

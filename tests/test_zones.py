@@ -272,3 +272,42 @@ def test_a_weak_link_dish_is_not_a_measurement_finding(tmp_path):
     path.write_text(json.dumps(data))
     strong = assess(load_site(path), grid_m=0.5)
     assert "dish-near-field-crossing" in [f.code for f in strong.flags]
+
+
+# --- both criteria --------------------------------------------------------------------------------
+
+
+def test_icnirp_2020_local_criterion_governs_a_spatial_average_site(load, tmp_path):
+    """ICNIRP 2020 requires the whole-body reference levels (Table 5, averaged over the body) and
+    the local ones (Table 6, spatial peak) both (REFERENCES.md § 11). In front of a 2 GHz panel
+    the field varies over the body height, so the spatial average is well below the peak while
+    Table 6 is only 4 × Table 5 above 2 GHz (40 against 10 W/m², general public): in
+    spatial-average mode the local criterion governs, and the result says so; in peak mode the
+    whole-body one does (the same peak against the lower limit)."""
+    from exposure.limits import load_standard
+
+    table = load_standard("icnirp-2020")
+    assert table.local().power_density_limit_w_m2(3500, "general_public") == pytest.approx(40.0)
+    assert table.power_density_limit_w_m2(3500, "general_public") == pytest.approx(10.0)
+    surfaces = [{"name": "Roof", "access": "occupational", "outline": [[0, 0], [20, 0], [20, 20], [0, 20]]}]
+    base = site([panel("P1", "Operator A (invented)", 10, 1, 0, eirp=2000, z=2.5)], surfaces, standard="icnirp-2020")
+    average = assess(load(dict(base, site=dict(base["site"], evaluation="spatial-average")), "avg.json"))
+    assert average.surfaces[0].governing_criterion == "local"
+    peak = assess(load(dict(base, site=dict(base["site"], evaluation="peak")), "peak.json"))
+    assert peak.surfaces[0].governing_criterion == "whole-body"
+    out = average.to_json()
+    assert out["surfaces"][0]["governing_criterion"] == "local"
+    assert any(a["topic"] == "Criteria" and "Table 6" in a["text"] for a in out["assumptions"])
+    fcc = assess(load(dict(base, site=dict(base["site"], standard="fcc")), "fcc.json"))
+    assert fcc.surfaces[0].governing_criterion == "single"
+
+
+def test_e_and_h_are_judged_separately_where_a_table_gives_no_power_density():
+    """Below 30 MHz ICNIRP 2020 gives E and H but no S: the ratio uses the stricter plane-wave
+    equivalent, min(E²/Z0, Z0·H²) (E and H judged separately). At 10 MHz, general public: E =
+    300/10^0.7 = 59.86 V/m → 9.505 W/m²; H = 2.2/10 = 0.22 A/m → 18.23 W/m²; E governs."""
+    from exposure.limits import load_standard
+
+    at = load_standard("icnirp-2020").at(10.0)["general_public"]
+    value, derived = at.comparison_power_density_w_m2()
+    assert derived and value == pytest.approx(min(59.86**2 / 376.73, 376.73 * 0.22**2), rel=1e-3)

@@ -214,7 +214,9 @@ def _at_a_glance(b: _Builder, a) -> None:
         rows.append([
             esc(s.name),
             esc(text.ACCESS_NAMES.get(s.access, s.access)),
-            esc(text.TIER_NAMES[tier]) if tier else "not judged",
+            (esc(text.TIER_NAMES[tier]) + (f" ({esc(s.governing_criterion)} criterion)"
+                                           if s.governing_criterion in ("local", "whole-body") else ""))
+            if tier else "not judged",
             f"<b>{text.percent(s.max_ratio[tier])}</b>" if tier else text.percent(s.max_ratio.get("occupational")),
             text.point(s.max_at_m[tier or "general_public"]),
             _compliant_word(s.compliant),

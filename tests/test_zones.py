@@ -311,3 +311,26 @@ def test_e_and_h_are_judged_separately_where_a_table_gives_no_power_density():
     at = load_standard("icnirp-2020").at(10.0)["general_public"]
     value, derived = at.comparison_power_density_w_m2()
     assert derived and value == pytest.approx(min(59.86**2 / 376.73, 376.73 * 0.22**2), rel=1e-3)
+
+
+def test_report_never_overwrites_its_record_and_refuses_fast(tmp_path, monkeypatch):
+    """`exposure report <site-id>.json` (the JSON beside the PDF would be the record itself)
+    leaves the record byte-identical and writes <site-id>.result.json; an unwritable -o is
+    exit 2 within a second, before any computing."""
+    import time
+
+    from conftest import BASE_RECORD
+
+    monkeypatch.chdir(tmp_path)
+    record = tmp_path / "test-site.json"
+    record.write_text(json.dumps(BASE_RECORD))
+    before = record.read_bytes()
+    result = runner.invoke(app, ["report", str(record), "-q", "--grid-m", "1"])
+    assert result.exit_code == 0, result.output
+    assert record.read_bytes() == before
+    assert (tmp_path / "test-site.pdf").is_file() and (tmp_path / "test-site.result.json").is_file()
+    blocker = tmp_path / "afile"
+    blocker.write_text("")
+    start = time.perf_counter()
+    result = runner.invoke(app, ["report", str(record), "-o", str(blocker / "x.pdf")])
+    assert result.exit_code == 2 and time.perf_counter() - start < 1.0

@@ -263,6 +263,16 @@ class _Columns:
     ratio: dict[str, np.ndarray]  # tier -> reduced total per column
     at_z: dict[str, np.ndarray]  # tier -> height of the column's peak (its base for averages)
     local_governs: dict[str, np.ndarray] | None = None  # tier -> the local criterion gives the ratio
+    shares: tuple | None = None  # (column indices above the public limit, tier -> (emitters, columns) shares)
+
+
+def emitter_shares(limits: SiteLimits, density, density_peak, evaluation: str, tier: str) -> np.ndarray:
+    """Each emitter's ratio to its own limit over the body height (last axis), as the site
+    evaluates it, or its ratio to the local limit at the spatial peak where that is larger."""
+    share = reduce_over_height(density * limits.inverse[tier][:, None, None], evaluation)
+    if density_peak is not None:
+        np.maximum(share, (density_peak * limits.inverse_local[tier][:, None, None]).max(axis=-1), out=share)
+    return share
 
 
 def _peak_density(site, points, density, evaluation: str, limits: SiteLimits):
@@ -319,6 +329,8 @@ def _evaluate_columns(site, surface, limits: SiteLimits, offsets, cx, cy, acc, p
     ratio = {tier: np.empty(len(cx)) for tier in TIERS}
     at_z = {tier: np.empty(len(cx)) for tier in TIERS}
     local_governs = {tier: np.zeros(len(cx), dtype=bool) for tier in TIERS}
+    kept_index: list[np.ndarray] = []  # columns above the public limit: their per-emitter shares, for the zones
+    kept = {tier: [] for tier in TIERS}
     chunk = max(1, POINT_BUDGET // (n_e * n_h))
     for start in range(0, len(cx), chunk):
         sl = slice(start, start + chunk)
@@ -345,7 +357,16 @@ def _evaluate_columns(site, surface, limits: SiteLimits, offsets, cx, cy, acc, p
                 np.maximum(acc.exceed_share[tier], share, out=acc.exceed_share[tier])
             if tier == governing and surface.access == "public":
                 _update_headroom(acc.headroom, density * inverse[tier][:, None, None], total, reduced, evaluation)
-    return _Columns(cx, cy, ratio, at_z, local_governs)
+        above = np.flatnonzero(ratio["general_public"][sl] > 1.0)
+        if above.size:
+            kept_index.append(start + above)
+            for tier in TIERS:
+                kept[tier].append(emitter_shares(limits, density[:, above], None if density_peak is None else
+                                                 density_peak[:, above], evaluation, tier).astype(np.float32))
+    shares = None
+    if kept_index:
+        shares = (np.concatenate(kept_index), {t: np.concatenate(kept[t], axis=1) for t in TIERS})
+    return _Columns(cx, cy, ratio, at_z, local_governs, shares)
 
 
 HOT_SPOT_FROM_M = 0.1
@@ -402,9 +423,10 @@ def _evaluate_surface(site, surface, limits: SiteLimits, offsets, grid_m, progre
 
 
 def _surface_zones(site, surface, grid, cells: _Columns, spots: _Columns, limits: SiteLimits, offsets, grid_m):
-    """The surface's zones (:mod:`exposure.zones`): polygons from the map, then each emitter's
-    share of its own limit evaluated again at the cells inside them and at the hot spots above
-    the public limit (only there)."""
+    """The surface's zones (:mod:`exposure.zones`): polygons from the map, and each emitter's
+    share of its own limit at the places inside them — kept from the map's evaluation for the
+    cells above the public limit, evaluated again only for the rest (the zones' rims, where
+    the contour passes between cells) and the hot spots above the public limit."""
     polygon = surface.polygon
     outer = zone_polygons(grid.x_m, grid.y_m, grid.ratio["general_public"], 1.0, polygon)
     inside = np.zeros(len(cells.x), dtype=bool)
@@ -413,31 +435,37 @@ def _surface_zones(site, surface, grid, cells: _Columns, spots: _Columns, limits
     hot = spots.ratio["general_public"] > 1.0
     if not inside.any() and not hot.any():
         return []
-    x = np.concatenate([cells.x[inside], spots.x[hot]])
-    y = np.concatenate([cells.y[inside], spots.y[hot]])
-    evaluation = site.record.site.evaluation
     n_e = len(site.antennas)
+    where = np.flatnonzero(inside)
+    x = np.concatenate([cells.x[where], spots.x[hot]])
+    y = np.concatenate([cells.y[where], spots.y[hot]])
     places: dict = {"x": x, "y": y}
     for tier in TIERS:
         places[tier] = {
-            "total": np.concatenate([cells.ratio[tier][inside], spots.ratio[tier][hot]]),
-            "z": np.concatenate([cells.at_z[tier][inside], spots.at_z[tier][hot]]),
-            "shares": np.empty((n_e, len(x))),
+            "total": np.concatenate([cells.ratio[tier][where], spots.ratio[tier][hot]]),
+            "z": np.concatenate([cells.at_z[tier][where], spots.at_z[tier][hot]]),
+            "shares": np.full((n_e, len(x)), np.nan),
         }
+    if cells.shares is not None:  # the cells the map's evaluation kept
+        index, kept = cells.shares
+        position = np.full(len(cells.x), -1)
+        position[where] = np.arange(len(where))
+        found = position[index] >= 0
+        for tier in TIERS:
+            places[tier]["shares"][:, position[index[found]]] = kept[tier][:, found]
+    missing = np.flatnonzero(np.isnan(places["general_public"]["shares"][0]))
+    evaluation = site.record.site.evaluation
     chunk = max(1, POINT_BUDGET // max(1, n_e * len(offsets)))
-    for start in range(0, len(x), chunk):
-        sl = slice(start, start + chunk)
-        points = np.empty((len(x[sl]), len(offsets), 3))
-        points[..., 0] = x[sl, None]
-        points[..., 1] = y[sl, None]
+    for start in range(0, len(missing), chunk):
+        idx = missing[start:start + chunk]
+        points = np.empty((len(idx), len(offsets), 3))
+        points[..., 0] = x[idx, None]
+        points[..., 1] = y[idx, None]
         points[..., 2] = surface.elevation_m + offsets[None, :]
         density = emitter_power_density(site, points)  # (n_e, n_places, n_h)
         density_peak = _peak_density(site, points, density, evaluation, limits)
         for tier in TIERS:
-            share = reduce_over_height(density * limits.inverse[tier][:, None, None], evaluation)
-            if density_peak is not None:  # an emitter's share of the local limit, where it is larger
-                np.maximum(share, (density_peak * limits.inverse_local[tier][:, None, None]).max(axis=-1), out=share)
-            places[tier]["shares"][:, sl] = share
+            places[tier]["shares"][:, idx] = emitter_shares(limits, density, density_peak, evaluation, tier)
     return zones_of_surface(surface.name, polygon, grid, places, [a.id for a in site.antennas],
                             [e.operator for e in site.record.emitters], grid_m)
 
@@ -534,41 +562,59 @@ def boundary_directions(antenna: Antenna) -> dict[str, list[np.ndarray]]:
 
 def ray_extent(antenna: Antenna, direction: np.ndarray, limit_w_m2: float, reflection: float) -> float:
     """Largest distance [m] along *direction* from the centre of radiation at which the
-    emitter alone reaches *limit_w_m2*; 0 where it never does.
+    emitter alone reaches *limit_w_m2*; 0 where it never does (:func:`ray_extents`)."""
+    return ray_extents(antenna, direction, [limit_w_m2], reflection)[0]
 
-    Scans 400 log-spaced distances out to where a spherical bound with the peak gain falls
-    below the limit, then refines the outermost crossing on finer grids to 1 mm or 0.1 %
-    (reported on the far side: conservative).
+
+def ray_extents(antenna: Antenna, direction: np.ndarray, limits_w_m2: Sequence[float], reflection: float) -> list[float]:
+    """:func:`ray_extent` for several limits along one ray, sharing the scan.
+
+    Scans 400 log-spaced distances out to 1.5 times where a spherical bound with the peak
+    gain falls below the lowest limit, then refines each limit's outermost crossing on finer
+    grids (32-fold a pass) to 1 mm or 0.1 % (reported on the far side: conservative).
     """
-    bound = math.sqrt(reflection * antenna.eirp_w / (4 * math.pi * limit_w_m2))
+    lowest = min(limits_w_m2)
+    bound = math.sqrt(reflection * antenna.eirp_w / (4 * math.pi * lowest))
     if antenna.kind == "dish" and antenna.diameter_m:
         bound = max(bound, 0.6 * antenna.diameter_m**2 / antenna.wavelength_m)
-    r = np.geomspace(1e-3, max(1.5 * bound, 0.5), 400)
+    scan = np.geomspace(1e-3, max(1.5 * bound, 0.5), 400)
     origin = np.asarray(antenna.position_m)
-    while True:
-        s = power_density(antenna, origin + r[:, None] * direction, reflection=reflection)
-        above = np.flatnonzero(s >= limit_w_m2)
-        if above.size == 0:
-            return 0.0  # only on the first pass: a refinement grid starts at a crossing
-        k = above[-1]
-        if k == len(r) - 1:
-            return float(r[-1])
-        lo, hi = r[k], r[k + 1]
-        if hi - lo <= max(1e-3, 1e-3 * lo):
-            return float(hi)
-        r = np.linspace(lo, hi, 33)  # refine the outermost crossing 32-fold per pass
+
+    def along(r):
+        return power_density(antenna, origin + r[:, None] * direction, reflection=reflection)
+
+    values = along(scan)
+    out = []
+    for limit in limits_w_m2:
+        r, s = scan, values
+        while True:
+            above = np.flatnonzero(s >= limit)
+            if above.size == 0:
+                out.append(0.0)  # only on the scan: a refinement grid starts at a crossing
+                break
+            k = above[-1]
+            if k == len(r) - 1:
+                out.append(float(r[-1]))
+                break
+            lo, hi = r[k], r[k + 1]
+            if hi - lo <= max(1e-3, 1e-3 * lo):
+                out.append(float(hi))
+                break
+            r = np.linspace(lo, hi, 33)  # refine the outermost crossing 32-fold per pass
+            s = along(r)
+    return out
 
 
 def emitter_boundaries(antenna: Antenna, limits_w_m2: dict[str, float], reflection: float) -> dict[str, dict[str, float]]:
     """Front, back, side, above and below boundary distances per tier [m]."""
     directions = boundary_directions(antenna)
-    return {
-        tier: {
-            name: max(ray_extent(antenna, d, limits_w_m2[tier], reflection) for d in directions[name])
-            for name in DIRECTIONS
-        }
-        for tier in TIERS
-    }
+    limits = [limits_w_m2[tier] for tier in TIERS]
+    out: dict[str, dict[str, float]] = {tier: {} for tier in TIERS}
+    for name in DIRECTIONS:
+        reach = [ray_extents(antenna, d, limits, reflection) for d in directions[name]]
+        for j, tier in enumerate(TIERS):
+            out[tier][name] = max(r[j] for r in reach)
+    return out
 
 
 # --- work positions --------------------------------------------------------------------------

@@ -302,6 +302,7 @@ def power_density_along_beam(
 
 
 _SCAN_SAMPLES = 400
+_REFINE_SAMPLES = 64
 
 
 def boresight_distance_to_limit(
@@ -336,7 +337,7 @@ def boresight_distance_to_limit(
     :math:`\sqrt{F\cdot EIRP/(4\pi S_L)}` (checked, and widened if not). The beam is
     sampled at 400 log-spaced distances from :func:`minimum_distance_m` to there, the
     outermost sample above the limit is taken, and the crossing after it is found by
-    bisection to 0.1 mm or 0.01 %, whichever is larger. The returned end is the one on
+    refining that interval 64 points at a time to 0.1 mm or 0.01 %, whichever is larger. The returned end is the one on
     the safe side (at or below the limit).
     """
     limit = float(limit_w_m2)
@@ -367,12 +368,11 @@ def boresight_distance_to_limit(
         return 0.0
     i = int(above[-1])
     lo, hi = float(grid[i]), float(grid[i + 1])
-    while hi - lo > max(1e-4, 1e-4 * hi):
-        mid = 0.5 * (lo + hi)
-        if along(np.array([mid]))[0] > limit:
-            lo = mid
-        else:
-            hi = mid
+    while hi - lo > max(1e-4, 1e-4 * hi):  # 64 points a step: each narrows the bracket 64 times
+        fine = np.linspace(lo, hi, _REFINE_SAMPLES + 1)
+        inner = np.flatnonzero(along(fine[1:-1]) > limit)  # lo is above the limit, hi at or below it
+        k = int(inner[-1]) + 1 if inner.size else 0
+        lo, hi = float(fine[k]), float(fine[k + 1])
     return hi
 
 

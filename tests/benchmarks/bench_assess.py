@@ -84,7 +84,7 @@ def main() -> None:
         path = Path(tmp) / "bench-roof.json"
         path.write_text(json.dumps(record))
         site = load_site(path)
-        _, _, inside = surface_cells(record["surfaces"][0]["outline"], args.grid_m)
+        _, _, inside = surface_cells(site.record.surfaces[0], args.grid_m)
         n_points = int(inside.sum()) * len(body_offsets(2.0))
         pairs = n_points * args.emitters
 

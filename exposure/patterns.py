@@ -749,12 +749,16 @@ class TabulatedPattern(Pattern):
     def _envelope_elevation_integral(self, h, low, high) -> np.ndarray:
         """Rows by horizontal attenuation, interpolated linearly between them (the integrand is
         convex in ``h``, so the chord lies above it: conservative, by under 0.2 %)."""
-        n = self._n_alpha
         k = np.clip(h / self._ENV_LEVEL_DB, 0.0, self._env_levels - 1.000001)
         i = k.astype(np.intp)
         k -= i
-        row = i * n
-        c = self._env_cumulative
+        return self._between(self._env_cumulative, i * self._n_alpha, k, low, high)
+
+    def _between(self, table: np.ndarray, row: np.ndarray, k: np.ndarray, low, high) -> np.ndarray:
+        """C(high) − C(low) from a table of cumulative integrals: rows of ``_n_alpha`` values
+        over elevation (−90…90° by ``_ALPHA_STEP_DEG``), read at ``row`` and the next row,
+        weighted ``1 − k`` and ``k``; linear in elevation."""
+        n = self._n_alpha
 
         def cumulative(alpha):
             j = np.degrees(alpha)
@@ -764,8 +768,8 @@ class TabulatedPattern(Pattern):
             j0 = j.astype(np.intp)
             j -= j0
             base = row + j0
-            lower = c[base] * (1.0 - j) + c[base + 1] * j
-            upper = c[base + n] * (1.0 - j) + c[base + n + 1] * j
+            lower = table[base] * (1.0 - j) + table[base + 1] * j
+            upper = table[base + n] * (1.0 - j) + table[base + n + 1] * j
             return lower * (1.0 - k) + upper * k
 
         result = cumulative(high)
@@ -792,27 +796,10 @@ class TabulatedPattern(Pattern):
         if self.rule == "envelope":
             return self._envelope_elevation_integral(part, low, high)
         h, w = part
-        n = self._n_alpha
         k = w * (self._WEIGHTS - 1)
         i = np.minimum(k.astype(np.intp), self._WEIGHTS - 2)
         k -= i  # fraction between tables i and i + 1
-        row = i * n
-
-        def cumulative(alpha):
-            j = np.degrees(alpha)
-            j += 90.0
-            j *= 1.0 / self._ALPHA_STEP_DEG
-            np.clip(j, 0.0, n - 1.000001, out=j)
-            j0 = j.astype(np.intp)
-            j -= j0
-            base = row + j0
-            c = self._cumulative
-            lower = c[base] * (1.0 - j) + c[base + 1] * j
-            upper = c[base + n] * (1.0 - j) + c[base + n + 1] * j
-            return lower * (1.0 - k) + upper * k
-
-        result = cumulative(high)
-        result -= cumulative(low)
+        result = self._between(self._cumulative, i * self._n_alpha, k, low, high)
         result *= db_to_linear(-h)
         return result
 

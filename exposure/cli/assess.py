@@ -17,11 +17,9 @@ from exposure.cli.common import (
     StandardOption,
     console,
     fmt,
+    make_table,
     print_cautions,
     print_json,
-)
-from exposure.cli.common import (
-    table as make_table,
 )
 
 EXIT_FAIL_ON = 3

@@ -47,7 +47,7 @@ def console(stderr: bool = False):
                    no_color=not terminal)
 
 
-def table(**options):
+def make_table(**options):
     """A rich table: ruled on a terminal, plain space-separated columns in a pipe or a file
     (no box characters, no truncation: columns never shrink below their contents)."""
     import sys

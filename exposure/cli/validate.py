@@ -13,10 +13,8 @@ from exposure.cli.common import (
     StandardOption,
     console,
     fmt,
+    make_table,
     print_json,
-)
-from exposure.cli.common import (
-    table as make_table,
 )
 
 

@@ -1,0 +1,43 @@
+"""Regression values (labelled as such: produced by this project's own code, not an outside
+reference): the `assess --json` output of both sample sites, kept from before the structural
+pass of the code so that moving code around cannot change a result. Regenerate only with a
+change that is meant to change results, and say so in its commit:
+
+    for s in sample_sites/*.toml; do exposure assess "$s" --json > tests/data/regression/$(basename "$s" .toml).assess.json; done
+
+Floats are compared to 12 significant digits (the last bits of BLAS sums may differ between
+processors); everything else, keys and order included, exactly; ``tool_version`` is ignored.
+"""
+
+from __future__ import annotations
+
+import json
+
+import pytest
+from typer.testing import CliRunner
+
+from conftest import REPO, SAMPLE_SITES
+from exposure.cli import app
+
+DATA = REPO / "tests" / "data" / "regression"
+
+
+def normalised(text: str) -> str:
+    def walk(value):
+        if isinstance(value, float):
+            return float(f"{value:.12g}")
+        if isinstance(value, dict):
+            return {k: walk(v) for k, v in value.items() if k != "tool_version"}
+        if isinstance(value, list):
+            return [walk(v) for v in value]
+        return value
+
+    return json.dumps(walk(json.loads(text)), indent=1, ensure_ascii=False)
+
+
+@pytest.mark.parametrize("path", SAMPLE_SITES, ids=lambda p: p.stem)
+def test_sample_site_results_are_unchanged(path):
+    result = CliRunner().invoke(app, ["assess", str(path), "--json"])
+    assert result.exit_code == 0, result.output
+    expected = (DATA / f"{path.stem}.assess.json").read_text(encoding="utf-8")
+    assert normalised(result.stdout) == normalised(expected)

@@ -13,6 +13,7 @@ rule, thermal region): ``T = Î£_i S_i / S_L,i`` per tier, compliant where ``T â‰
 
 from __future__ import annotations
 
+import dataclasses
 import math
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass
@@ -23,11 +24,13 @@ from exposure import __version__, aperture, numbers
 from exposure.antenna import Antenna
 from exposure.field import (
     REFLECTION_FACTORS,
+    Prepared,
     boresight_distance_to_limit,
     element_zone,
     element_zone_distance_m,
     model_for,
     power_density,
+    prepare,
     structure_distance,
 )
 from exposure.geometry import area_m2, contains, distance_xy, nearest_inside
@@ -177,6 +180,14 @@ def standing_surface(site: LoadedSite, x: float, y: float, z: float):
     return None
 
 
+def prepared_site(site: LoadedSite) -> LoadedSite:
+    """The site with every emitter prepared once (:func:`exposure.field.prepare`: pattern and
+    frame built once, not on every evaluation)."""
+    if all(isinstance(a, Prepared) for a in site.antennas):
+        return site
+    return dataclasses.replace(site, antennas=tuple(prepare(a) for a in site.antennas))
+
+
 def probe(site: LoadedSite, point_m: Sequence[float], standing: bool | None = None) -> dict:
     """Power density and ratios at one point (the ``exposure probe`` JSON).
 
@@ -190,6 +201,7 @@ def probe(site: LoadedSite, point_m: Sequence[float], standing: bool | None = No
         False never, None (default) where z is the elevation of a surface that holds (x, y).
         It is the value the assessment uses for a work position there.
     """
+    site = prepared_site(site)
     point = np.asarray(point_m, dtype=float).reshape(1, 3)
     density = emitter_power_density(site, point)[:, 0]
     limits = site_limits(site)
@@ -767,6 +779,7 @@ def assess(
         from exposure.errors import InputError
 
         raise InputError(f"--measure-above: {measure_above:g} must be in (0, 1]")
+    site = prepared_site(site)
     info = site.record.site
     grid_m = grid_m or info.grid_m
     problem = grid_budget_problem(site.record, grid_m)
@@ -1017,6 +1030,7 @@ def section(
     along its azimuth (negative behind), ``z_m`` site heights and ``ratio[tier]`` of shape
     (len(z_m), len(s_m)), summed over all emitters.
     """
+    site = prepared_site(site)
     index = next((i for i, a in enumerate(site.antennas) if a.id == emitter_id), None)
     if index is None:
         from exposure.errors import UnknownKeyError

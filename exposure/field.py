@@ -44,6 +44,8 @@ from exposure.frames import antenna_frame, direction_from_angles, to_site_direct
 from exposure.patterns import Pattern, pattern_for
 
 __all__ = [
+    "Prepared",
+    "prepare",
     "Model",
     "MODELS",
     "Reflection",
@@ -213,8 +215,38 @@ def _kernel(antenna: Antenna, model: str, auto: bool, pattern: Pattern, spatial_
     raise AssertionError(model)  # pragma: no cover - model_for checked it
 
 
+class Prepared:
+    """An emitter with what every evaluation of it needs, built once: its pattern and its
+    frame. Reads as the :class:`~exposure.antenna.Antenna` it wraps (attributes pass through).
+
+    Build one per emitter per assessment (:func:`prepare`) and pass it wherever an antenna
+    goes: every function of this module takes either. Prepared objects are compared by
+    identity, never by value (two antennas that differ only in their tabulated cuts compare
+    equal as antennas).
+    """
+
+    __slots__ = ("antenna", "pattern", "origin", "axes")
+
+    def __init__(self, antenna: Antenna) -> None:
+        _check_antenna(antenna)
+        self.antenna = antenna
+        self.pattern = pattern_for(antenna)
+        self.origin, self.axes = antenna_frame(antenna)
+
+    def __getattr__(self, name: str):
+        return getattr(self.antenna, name)
+
+    def __repr__(self) -> str:
+        return f"Prepared({self.antenna.id!r})"
+
+
+def prepare(antenna: Antenna | Prepared) -> Prepared:
+    """*antenna* prepared for evaluation (itself if it already is)."""
+    return antenna if isinstance(antenna, Prepared) else Prepared(antenna)
+
+
 def power_density(
-    antenna: Antenna,
+    antenna: Antenna | Prepared,
     points,
     *,
     model: str = "auto",
@@ -252,7 +284,8 @@ def power_density(
     resolved = model_for(antenna, model)
     factor = reflection_factor(reflection)
     spatial_peak = _is_spatial_peak(evaluation)
-    _check_antenna(antenna)
+    prepared = prepare(antenna)
+    antenna = prepared.antenna
     pts = np.asarray(points, dtype=float)
     if pts.ndim == 0 or pts.shape[-1] != 3:
         raise InputError(f"points must have shape (..., 3) [m]; got shape {pts.shape}")
@@ -261,9 +294,9 @@ def power_density(
     out = np.empty(flat.shape[0])
     if flat.shape[0] == 0:
         return out.reshape(shape)
-    origin, axes = antenna_frame(antenna)
+    origin, axes = prepared.origin, prepared.axes
     offset = (axes @ origin)[:, None]
-    pattern = pattern_for(antenna)
+    pattern = prepared.pattern
     kernel = _kernel(antenna, resolved, model == "auto", pattern, spatial_peak)
     induction = model == "auto" and antenna.kind != "dish"
     for start in range(0, flat.shape[0], CHUNK_POINTS):
@@ -286,16 +319,16 @@ def beam_direction(antenna: Antenna) -> np.ndarray:
     (mechanical tilt, azimuth, a dish's elevation). For a beam-steering array, the centre
     of the scan ranges.
     """
-    pattern = pattern_for(antenna)
-    _, axes = antenna_frame(antenna)
-    local = direction_from_angles(pattern.peak_azimuth_deg, pattern.peak_elevation_deg)
-    return to_site_direction(local, axes)
+    prepared = prepare(antenna)
+    local = direction_from_angles(prepared.pattern.peak_azimuth_deg, prepared.pattern.peak_elevation_deg)
+    return to_site_direction(local, prepared.axes)
 
 
 def power_density_along_beam(
     antenna: Antenna, distances_m, *, model: str = "auto", reflection: str | float = "none", evaluation: str = "peak"
 ):
     """Power density at distances along the main beam from the centre of radiation [W/m²]."""
+    antenna = prepare(antenna)
     d = np.asarray(distances_m, dtype=float)
     points = np.asarray(antenna.position_m, dtype=float) + d[..., None] * beam_direction(antenna)
     return power_density(antenna, points, model=model, reflection=reflection, evaluation=evaluation)
@@ -346,7 +379,7 @@ def boresight_distance_to_limit(
     factor = reflection_factor(reflection)
     model_for(antenna, model)
     _is_spatial_peak(evaluation)
-    _check_antenna(antenna)
+    antenna = prepare(antenna)  # checked, its pattern and frame built once for every step below
     if antenna.net_power_w == 0.0:
         return 0.0
 
@@ -463,9 +496,9 @@ def structure_distance(antenna: Antenna, points) -> np.ndarray:
     pts = np.asarray(points, dtype=float)
     if pts.ndim == 0 or pts.shape[-1] != 3:
         raise InputError(f"points must have shape (..., 3) [m]; got shape {pts.shape}")
-    origin, axes = antenna_frame(antenna)
-    local = axes @ (pts.reshape(-1, 3) - origin).T
-    return structure_distance_local(antenna, local).reshape(pts.shape[:-1])
+    prepared = prepare(antenna)
+    local = prepared.axes @ (pts.reshape(-1, 3) - prepared.origin).T
+    return structure_distance_local(prepared.antenna, local).reshape(pts.shape[:-1])
 
 
 def element_zone(antenna: Antenna, points) -> np.ndarray:

@@ -41,3 +41,24 @@ def test_sample_site_results_are_unchanged(path):
     assert result.exit_code == 0, result.output
     expected = (DATA / f"{path.stem}.assess.json").read_text(encoding="utf-8")
     assert normalised(result.stdout) == normalised(expected)
+
+
+def test_each_pattern_is_built_once_per_assessment(monkeypatch):
+    """Patterns and frames are prepared once per emitter per assessment (they were rebuilt on
+    every field call: 478 times for the 7-emitter demo roof); the result is unchanged (the
+    regression values above)."""
+    import exposure.field
+    from exposure.assessment import assess
+    from exposure.loader import load_site
+
+    built: list[str] = []
+    real = exposure.field.pattern_for
+
+    def counting(antenna):
+        built.append(antenna.id)
+        return real(antenna)
+
+    monkeypatch.setattr(exposure.field, "pattern_for", counting)
+    site = load_site(REPO / "sample_sites" / "rooftop-larkspur.toml")
+    assess(site, grid_m=1.0)
+    assert sorted(built) == sorted(a.id for a in site.antennas)

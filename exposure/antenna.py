@@ -21,7 +21,7 @@ EMITTER_KINDS: tuple[str, ...] = ("panel", "omni", "dish", "array", "directional
 
 DEFAULT_SIDELOBE_FLOOR_DB = 13.0
 """Side-lobe floor where a record gives none [dB]: a uniform array's first side lobe is
--13.26 dB (textbook array theory; REFERENCES.md § 9), so a deeper default would hide it."""
+-13.26 dB (textbook array theory; docs/references.md § 9), so a deeper default would hide it."""
 
 
 @dataclass(frozen=True)

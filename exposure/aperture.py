@@ -2,7 +2,7 @@ r"""Aperture (dish) model of FCC OET Bulletin 65: near field, transition, far fi
 
 On the beam axis, at distance :math:`R` from a reflector of diameter :math:`D`, area
 :math:`A = \pi D^2/4` and aperture efficiency :math:`\eta` fed with :math:`P`
-(OET 65, Edition 97-01, 1997, Section 2; from memory, REFERENCES.md § 3):
+(OET 65, Edition 97-01, 1997, Section 2; from memory, docs/references.md § 3):
 
 .. math::
 
@@ -11,7 +11,7 @@ On the beam axis, at distance :math:`R` from a reflector of diameter :math:`D`, 
     S_t = S_{nf}\,\frac{R_{nf}}{R}\quad (R_{nf} < R < R_{ff});\qquad
     R_{ff} = \frac{0.6\,D^2}{\lambda},\quad S = \frac{PG}{4\pi R^2}\quad (R \ge R_{ff})
 
-with :math:`G = \eta(\pi D/\lambda)^2`. Check (REFERENCES.md): D 3 m, 6 GHz, 100 W,
+with :math:`G = \eta(\pi D/\lambda)^2`. Check (docs/references.md): D 3 m, 6 GHz, 100 W,
 η 0.55 give :math:`R_{nf}` 45.0 m, :math:`R_{ff}` 108.1 m, :math:`S_{nf}` 31.1 W/m²,
 G 42.9 dBi.
 

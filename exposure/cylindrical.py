@@ -52,7 +52,7 @@ def cylindrical_power_density(net_power_w, distance_m, aperture_height_m, h_beam
         S_{dir} = \frac{180}{\theta_{BW}}\,\frac{P}{\pi R h}
 
     Cylindrical model of FCC OET Bulletin 65, Edition 97-01 (1997), Section 2 (from
-    memory; REFERENCES.md § 3). Valid in the radiating near field, within the aperture's
+    memory; docs/references.md § 3). Valid in the radiating near field, within the aperture's
     height and inside the crossover distance (:func:`crossover_distance_m`).
     """
     p = np.asarray(net_power_w, dtype=float)
@@ -70,7 +70,7 @@ def crossover_distance_m(gain_linear: float, h_beamwidth_deg, aperture_height_m:
     .. math:: R_c = \frac{G\,\theta_{BW}\,h}{720}
 
     with :math:`\theta_{BW}` in degrees (360 for an omni, where it reads :math:`Gh/2`).
-    FCC OET Bulletin 65 (1997) (from memory; REFERENCES.md § 3). It follows from equating
+    FCC OET Bulletin 65 (1997) (from memory; docs/references.md § 3). It follows from equating
     :func:`cylindrical_power_density` with :math:`PG/(4\pi R^2)`.
     """
     width = 360.0 if is_omni_width(h_beamwidth_deg) else float(h_beamwidth_deg)

@@ -24,7 +24,7 @@ def minimum_distance_m(wavelength_m: float) -> float:
 
     .. math:: r_{min} = \min(\lambda / 2\pi,\ 0.1\ \mathrm{m})
 
-    Inside :math:`\lambda/2\pi` (the reactive near field; REFERENCES.md § 3) none of the
+    Inside :math:`\lambda/2\pi` (the reactive near field; docs/references.md § 3) none of the
     models applies. Every model's distance is clamped to :math:`r_{min}` so that a point
     at the source gives a finite value: the value the model gives at :math:`r_{min}`,
     which is at least as high as any value it gives farther out (conservative with
@@ -55,7 +55,7 @@ def spherical_power_density(eirp_w, distance_m, relative_gain=1.0):
     -----
     .. math:: S = \frac{P\,G\,g(\theta,\varphi)}{4\pi r^2}
 
-    FCC OET Bulletin 65, Edition 97-01 (1997), far-field equation (from memory; REFERENCES.md § 3).
+    FCC OET Bulletin 65, Edition 97-01 (1997), far-field equation (from memory; docs/references.md § 3).
     Valid in the far field, :math:`r \gtrsim 2D^2/\lambda`; nearer it overestimates the
     main beam of a large aperture.
     """
@@ -104,7 +104,7 @@ def endfire_kernel(pattern: Pattern, eirp_w: float, length_m: float, forward, ri
     .. math:: S = \frac{P\,G\,g(\varphi,\theta)}{4\pi d^2},\qquad
               d^2 = \max(|f| - L/2,\ 0)^2 + r^2 + u^2
 
-    The far-field form of OET 65 (REFERENCES.md § 3) with the direction seen from the
+    The far-field form of OET 65 (docs/references.md § 3) with the direction seen from the
     centre and the distance from the nearest point of the radiating length. An end-fire
     antenna (Yagi–Uda, log-periodic, horn) radiates from all along its length and its phase
     centre moves with distance; measuring from the nearer end is conservative close by and

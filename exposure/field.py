@@ -420,7 +420,7 @@ def element_zone_distance_m(antenna: Antenna) -> float:
 
     Within about a wavelength of the elements the induction (reactive) fields add to the
     radiating field, and a full-wave solver finds E and H up to 6 dB above any
-    radiating-field model there (REFERENCES.md § 9); the reactive near field proper ends at
+    radiating-field model there (docs/references.md § 9); the reactive near field proper ends at
     λ/2π (FCC OET Bulletin 65, 1997; from memory). Inside this zone a power density does
     not describe exposure: E and H (and contact currents) are measured instead.
     """

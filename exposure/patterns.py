@@ -298,7 +298,7 @@ class SectorPattern(Pattern):
 
     Tangent skirt (``skirt="tangent"``). Real panels' and Yagis' horizontal patterns fall
     more slowly beyond the half-power points than the 3GPP parabola: against a full-wave
-    solver (nec2++, panels of dipoles before a wire reflector, REFERENCES.md § 9) the parabola
+    solver (nec2++, panels of dipoles before a wire reflector, docs/references.md § 9) the parabola
     is 0.8–5 dB too deep at 60–110° off boresight. Beyond the half-power angle
     :math:`\varphi_3/2` the cut therefore follows the parabola's tangent there,
 

@@ -1,6 +1,6 @@
 r"""Exemption from routine RF evaluation, 47 CFR § 1.1307(b)(3) (rules of FCC 19-126, 2019).
 
-Three tests for a single fixed RF source (REFERENCES.md § 2):
+Three tests for a single fixed RF source (docs/references.md § 2):
 
 * (i)(A) :func:`one_milliwatt_exemption` — available maximum time-averaged power at most
   1 mW, at any distance (confirmed).
@@ -214,7 +214,7 @@ def sar_threshold_mw(frequency_mhz: float, distance_m: float) -> float:
         P_{th} = \begin{cases} ERP_{20\,cm}\,(d/20)^x & d \le 20\ \mathrm{cm} \\
                                ERP_{20\,cm} & 20 < d \le 40\ \mathrm{cm} \end{cases}
 
-    REFERENCES.md § 2, **from memory** (not checked against the CFR text). Check:
+    docs/references.md § 2, **from memory** (not checked against the CFR text). Check:
     d = 1 cm, 0.45 GHz → 44.37 mW.
 
     Raises
@@ -256,5 +256,5 @@ def sar_exemption(power_w: float, frequency_mhz: float, distance_m: float) -> Ex
         unit="mW",
         exempt=p * 1e3 <= threshold,
         citation=f"{CITATION}, (i)(B)",
-        note="SAR-based threshold P_th, formula from memory (REFERENCES.md § 2); compare the larger of power and ERP",
+        note="SAR-based threshold P_th, formula from memory (docs/references.md § 2); compare the larger of power and ERP",
     )

@@ -15,7 +15,7 @@ In front of the aperture, where it is long against the vertical beam seen from t
 point, the sum tends to :math:`PG\int g\,d\theta/(4\pi L R)`: the 1/R law of the
 cylindrical model. Far away it tends to one source at the centre, the spherical law.
 Above, below and beside the array each sub-source's own distance and angle count, which
-is what the model is for. IEC 62232 / ITU-T K.61 practice (from memory; REFERENCES.md § 7).
+is what the model is for. IEC 62232 / ITU-T K.61 practice (from memory; docs/references.md § 7).
 
 Evaluation
 ----------
@@ -165,7 +165,7 @@ def coherent_margin(distance_m, length_m: float, wavelength_m: float) -> np.ndar
     and in its Fresnel zone the fields focus. For a uniform line source on axis the coherent
     power density exceeds the power sum by +0.8 dB at :math:`0.1\,r_{ff}`, +2.5 to +2.6 dB
     at 0.15–0.2 :math:`r_{ff}`, +1.9 dB at 0.3, +0.9 dB at 0.5 and +0.25 dB at
-    :math:`r_{ff}` (line-source theory, REFERENCES.md § 9). The cylindrical-wave literature
+    :math:`r_{ff}` (line-source theory, docs/references.md § 9). The cylindrical-wave literature
     gives the spatial peak as about twice the spatial average (Cicchetti & Faraone, IEEE
     Trans. EMC 46(2), 2004; the factor from memory), and OET 65's cylindrical form behaves
     as the average. The margin takes that factor of 2 (+3.0 dB) over the focusing zone and

@@ -3,7 +3,7 @@ where the signs go.
 
 Categories (47 CFR § 1.1307(b) as amended by FCC 19-126, rule text quoted in 85 FR 81472,
 16 Dec 2020 — Categories Three and Four confirmed, One and Two from memory; IEEE C95.7;
-REFERENCES.md § 10), by the total exposure ratio T against each tier's limit:
+docs/references.md § 10), by the total exposure ratio T against each tier's limit:
 
 =====  =========================================  ==========  ============================
  cat   where                                      sign word   what it asks
@@ -77,7 +77,7 @@ def category_thresholds_w_m2(limit_public_w_m2: float, limit_occupational_w_m2: 
     """Power densities [W/m²] at which categories 2, 3 and 4 begin, for one frequency.
 
     At 850 MHz under 47 CFR § 1.1310 Table 1: f/1500 = 0.567 mW/cm² = 5.67 W/m², f/300 =
-    28.3 W/m² and ten times that, 283 W/m² (REFERENCES.md § 10 check values).
+    28.3 W/m² and ten times that, 283 W/m² (docs/references.md § 10 check values).
     """
     return {2: float(limit_public_w_m2), 3: float(limit_occupational_w_m2), 4: 10.0 * float(limit_occupational_w_m2)}
 

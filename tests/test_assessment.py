@@ -3,7 +3,7 @@
 The invented sites here are small on purpose; each check names the law or formula it
 rests on. OET 65 = FCC OET Bulletin 65, Edition 97-01 (1997); the far-field form
 S = F·EIRP/(4πR²) with F the ground-reflection factor is from memory of that bulletin, as
-REFERENCES.md §3 records.
+docs/references.md §3 records.
 """
 
 from __future__ import annotations
@@ -391,7 +391,7 @@ def test_random_sites_give_finite_results(load, x, y, z, azimuth, tilt, kind):
 
 
 def test_element_zone_is_marked_counted_and_flagged_only_where_people_reach_it(load):
-    """Full-wave finding (REFERENCES.md § 9): within about a wavelength of the elements a power
+    """Full-wave finding (docs/references.md § 9): within about a wavelength of the elements a power
     density does not describe exposure. A 2 GHz panel (λ = 0.15 m) standing on a roof, its
     aperture from 1.15 to 1.65 m: the cells within λ of it (plus half a cell) are marked and
     counted, the flag names it; lifted 10 m up, nobody reaches it and nothing is marked."""

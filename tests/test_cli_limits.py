@@ -1,7 +1,7 @@
 """`exposure limits` through typer's CliRunner: exit codes, output and the JSON contract.
 
 Expected limit values are from 47 CFR § 1.1310(e)(1) Table 1 (confirmed) and ICNIRP 2020
-Table 5 (from memory), as REFERENCES.md gives them; the JSON keys from INTERFACE.md.
+Table 5 (from memory), as docs/references.md gives them; the JSON keys from INTERFACE.md.
 """
 
 from __future__ import annotations

@@ -1,6 +1,6 @@
 """The published limit tables (limits/*.toml) and their loader, exposure.limits.
 
-Expected values are typed here from the sources as REFERENCES.md gives them:
+Expected values are typed here from the sources as docs/references.md gives them:
 47 CFR § 1.1310(e)(1) Table 1 (confirmed), ICNIRP 2020 Table 5 (from memory),
 ICNIRP 1998 Tables 6–7 (power density and averaging confirmed, E and H from memory) and
 Health Canada Safety Code 6, 2015 (from memory). Test ids carry that status.
@@ -30,7 +30,7 @@ from exposure.limits import (
 LIMITS_DIR = Path(__file__).resolve().parents[1] / "limits"
 
 MW_CM2 = 10.0  # 1 mW/cm² = 10 W/m² (FCC Table 1 gives power density in mW/cm²)
-Z0 = 376.73  # free-space impedance [ohm], CODATA (REFERENCES.md §3); 377 in trade use
+Z0 = 376.73  # free-space impedance [ohm], CODATA (docs/references.md §3); 377 in trade use
 
 Law = Callable[[float], float] | None  # f in MHz -> value in SI units; None: "–" / "NA"
 
@@ -51,7 +51,7 @@ class Row:
     avg: Law  # min
 
 
-# 47 CFR § 1.1310(e)(1), Table 1 (REFERENCES.md §1) -- confirmed.
+# 47 CFR § 1.1310(e)(1), Table 1 (docs/references.md §1) -- confirmed.
 FCC = {
     "occupational": [
         Row(0.3, 3.0, const(614), const(1.63), const(100 * MW_CM2), const(6)),
@@ -69,7 +69,7 @@ FCC = {
     ],
 }
 
-# ICNIRP 2020, Table 5, whole body, 30 min (REFERENCES.md §4) -- from memory.
+# ICNIRP 2020, Table 5, whole body, 30 min (docs/references.md §4) -- from memory.
 ICNIRP_2020 = {
     "occupational": [
         Row(0.1, 30, lambda f: 660 / f**0.7, lambda f: 4.9 / f, None, const(30)),
@@ -85,7 +85,7 @@ ICNIRP_2020 = {
     ],
 }
 
-# ICNIRP 1998, Tables 6 (occupational) and 7 (general public) (REFERENCES.md §5):
+# ICNIRP 1998, Tables 6 (occupational) and 7 (general public) (docs/references.md §5):
 # S_eq and averaging confirmed, E and H from memory. Averaging 6 min below 10 GHz,
 # 68/f_GHz^1.05 min above, so the 2–300 GHz row is split at 10 GHz.
 def _avg_1998_above_10ghz(f: float) -> float:
@@ -107,7 +107,7 @@ ICNIRP_1998 = {
     ],
 }
 
-# Health Canada Safety Code 6 (2015) (REFERENCES.md §6) -- from memory. Averaging 6 min
+# Health Canada Safety Code 6 (2015) (docs/references.md §6) -- from memory. Averaging 6 min
 # up to 6 GHz; none given above (null in the file).
 CANADA_SC6 = {
     "general_public": [  # uncontrolled environments
@@ -136,7 +136,7 @@ CANADA_SC6 = {
 }
 
 SOURCE = {"fcc": FCC, "icnirp-2020": ICNIRP_2020, "icnirp-1998": ICNIRP_1998, "canada-sc6": CANADA_SC6}
-STATUS = {  # how sure REFERENCES.md is, for the test ids
+STATUS = {  # how sure docs/references.md is, for the test ids
     "fcc": "confirmed",
     "icnirp-2020": "from-memory",
     "icnirp-1998": "E-H-from-memory",
@@ -249,9 +249,9 @@ def test_lookup_inside_each_band(key, tier, index, frequency):
     ],
 )
 def test_known_values(key, tier, frequency, attr, expected):
-    """Check values stated in REFERENCES.md (the id names the table and its status)."""
+    """Check values stated in docs/references.md (the id names the table and its status)."""
     value = getattr(load_standard(key).at(frequency)[tier], attr).value
-    assert value == pytest.approx(expected, rel=5e-4)  # REFERENCES.md quotes 3-4 figures
+    assert value == pytest.approx(expected, rel=5e-4)  # docs/references.md quotes 3-4 figures
 
 
 def test_fcc_power_density_printed_as_the_table():
@@ -365,7 +365,7 @@ def _gives_e_and_s(case) -> bool:
 
 @pytest.mark.parametrize(("key", "tier", "index", "frequency"), list(filter(_gives_e_and_s, _band_points())))
 def test_power_density_is_e_squared_over_z0(key, tier, index, frequency):
-    """Plane wave: S = E²/Z0 (OET 65; REFERENCES.md §1 "S = E²/3770") and E/H = Z0 where
+    """Plane wave: S = E²/Z0 (OET 65; docs/references.md §1 "S = E²/3770") and E/H = Z0 where
     E and H follow the same law, within the printed rounding."""
     row = SOURCE[key][tier][index]
     e, h, s = (_expected(row, name, frequency) for name in ("e", "h", "s"))
@@ -376,7 +376,7 @@ def test_power_density_is_e_squared_over_z0(key, tier, index, frequency):
 
 
 def test_fcc_61_4_v_m_is_1_mw_cm2():
-    """47 CFR § 1.1310 Table 1 consistency, as REFERENCES.md §1 states: 61.4²/3770 = 1.000."""
+    """47 CFR § 1.1310 Table 1 consistency, as docs/references.md §1 states: 61.4²/3770 = 1.000."""
     assert 61.4**2 / 3770 == pytest.approx(1.000, abs=5e-4)
     limit = load_standard("fcc").at(100)["occupational"]
     assert limit.e_field.value**2 / (10 * Z0) == pytest.approx(limit.power_density.value / MW_CM2, rel=2e-3)
@@ -391,7 +391,7 @@ def test_icnirp_1998_61_v_m_is_10_w_m2():
 
 def test_derived_power_density_where_only_fields_are_given():
     """ICNIRP 2020 Table 5 gives S as NA below 30 MHz (from memory): ratios use the
-    plane-wave equivalent E²/Z0, marked as derived (REFERENCES.md §4)."""
+    plane-wave equivalent E²/Z0, marked as derived (docs/references.md §4)."""
     table = load_standard("icnirp-2020")
     limit = table.at(10)["general_public"]
     assert limit.power_density.value is None
@@ -454,7 +454,7 @@ def test_file_header_and_explicit_entries(key):
 
 
 def test_sc6_averaging_above_6_ghz_is_explicitly_missing():
-    """REFERENCES.md §6 gives SC6 averaging (6 min) only up to 6 GHz: above, null with a note."""
+    """docs/references.md §6 gives SC6 averaging (6 min) only up to 6 GHz: above, null with a note."""
     limit = load_standard("canada-sc6").at(10_000)["general_public"]
     assert limit.averaging_min is None
     assert limit.averaging.note == "not transcribed; consult SC6"

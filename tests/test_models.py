@@ -128,7 +128,7 @@ def test_cylindrical_off_the_aperture_height_falls_from_the_nearer_end():
 
 
 def test_aperture_matches_the_oet65_check_values():
-    """REFERENCES.md § 3 check: D 3 m, 6 GHz, 100 W, eta 0.55 -> R_nf 45.0 m, R_ff 108.1 m,
+    """docs/references.md § 3 check: D 3 m, 6 GHz, 100 W, eta 0.55 -> R_nf 45.0 m, R_ff 108.1 m,
     S_nf 31.1 W/m2, G 42.9 dBi."""
     lam = 299.792458 / 6000.0
     assert aperture.near_field_extent_m(3.0, lam) == pytest.approx(45.0, abs=0.05)

@@ -1,4 +1,4 @@
-"""47 CFR § 1.1307(b)(3) exemption tests (REFERENCES.md § 2)."""
+"""47 CFR § 1.1307(b)(3) exemption tests (docs/references.md § 2)."""
 
 from __future__ import annotations
 
@@ -20,7 +20,7 @@ from exposure.screening import (
 
 
 def fcc_general_population_w_m2(f_mhz: float) -> float:
-    """47 CFR 1.1310(e)(1) Table 1, general population, typed from REFERENCES.md § 1 (confirmed)."""
+    """47 CFR 1.1310(e)(1) Table 1, general population, typed from docs/references.md § 1 (confirmed)."""
     if f_mhz <= 1.34:
         mw_cm2 = 100.0
     elif f_mhz <= 30:
@@ -37,7 +37,7 @@ def fcc_general_population_w_m2(f_mhz: float) -> float:
 @pytest.mark.parametrize("f_mhz", [0.5, 1.0, 2.0, 10.0, 29.0, 50.0, 150.0, 299.0, 450.0, 900.0, 1400.0, 1960.0, 28000.0])
 @pytest.mark.parametrize("multiple", [1.0, 3.0, 20.0])
 def test_erp_threshold_is_the_limit_reached_by_the_spherical_model(f_mhz, multiple):
-    """REFERENCES.md § 2 derived check: each row of Table 1 of (i)(C) is the general-population
+    """docs/references.md § 2 derived check: each row of Table 1 of (i)(C) is the general-population
     limit reached at R by the spherical model with full reflection (x4) and EIRP = 1.64 ERP
     (to 0.3 %). The spherical model here is exposure.field's, with reflection 'full'.
     R is 1, 3 and 20 m, or that many times lambda/2pi where the table starts farther out."""
@@ -81,7 +81,7 @@ def test_one_milliwatt_rule():
 
 
 def test_sar_threshold_check_value():
-    """(i)(B), from memory (REFERENCES.md § 2): d = 1 cm, 0.45 GHz -> 44.37 mW."""
+    """(i)(B), from memory (docs/references.md § 2): d = 1 cm, 0.45 GHz -> 44.37 mW."""
     assert sar_threshold_mw(450.0, 0.01) == pytest.approx(44.37, abs=0.01)
 
 

@@ -1,7 +1,7 @@
 """Exposure categories, zones, responsibility per zone, signs, and surfaces with holes.
 
 Sources: 47 CFR § 1.1307(b) as amended by FCC 19-126 (85 FR 81472, 2020) and IEEE C95.7 for
-the categories and sign words (REFERENCES.md § 10: categories three and four confirmed, one
+the categories and sign words (docs/references.md § 10: categories three and four confirmed, one
 and two from memory); 47 CFR § 1.1310 Table 1 for the limits (confirmed); shapely (GEOS) as
 the general-purpose geometry reference.
 """
@@ -54,7 +54,7 @@ def load(tmp_path):
 
 def test_category_thresholds_at_850_mhz_from_the_fcc_table():
     """Derived from 47 CFR § 1.1310 Table 1 at 850 MHz: public f/1500 mW/cm² = 5.667 W/m²,
-    occupational f/300 = 28.33 W/m², ten times that 283.3 W/m² (REFERENCES.md § 10)."""
+    occupational f/300 = 28.33 W/m², ten times that 283.3 W/m² (docs/references.md § 10)."""
     table = load_standard("fcc")
     thresholds = category_thresholds_w_m2(
         table.power_density_limit_w_m2(850, "general_public"), table.power_density_limit_w_m2(850, "occupational")
@@ -279,7 +279,7 @@ def test_a_weak_link_dish_is_not_a_measurement_finding(tmp_path):
 
 def test_icnirp_2020_local_criterion_governs_a_spatial_average_site(load, tmp_path):
     """ICNIRP 2020 requires the whole-body reference levels (Table 5, averaged over the body) and
-    the local ones (Table 6, spatial peak) both (REFERENCES.md § 11). In front of a 2 GHz panel
+    the local ones (Table 6, spatial peak) both (docs/references.md § 11). In front of a 2 GHz panel
     the field varies over the body height, so the spatial average is well below the peak while
     Table 6 is only 4 × Table 5 above 2 GHz (40 against 10 W/m², general public): in
     spatial-average mode the local criterion governs, and the result says so; in peak mode the

@@ -4,7 +4,7 @@
 returns a :class:`Solution`: the input power, the principal-plane far-field cuts, and the
 near fields at the comparison points (:func:`comparison_points`) as power densities.
 
-Conventions (REFERENCES.md § 9): nec2++ phasors are peak values, so the input power is
+Conventions (docs/references.md § 9): nec2++ phasors are peak values, so the input power is
 P = ½ Re(V I*) summed over the feeds, and the plane-wave equivalent power densities are
 S_E = |E|²/(2 Z₀) and S_H = Z₀|H|²/2. The wires are lossless, so the radiated power is
 the input power. The reference power density is the larger of S_E and S_H at each point

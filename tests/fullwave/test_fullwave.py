@@ -4,7 +4,7 @@ Reference: nec2++ (method of moments on thin wires, through PyNEC), a general-pu
 solver outside this project; antennas of :mod:`tests.fullwave.antennas` in free space,
 lossless wires. Each antenna is described to the tool by a record read off the solver's own
 far-field cuts (:mod:`tests.fullwave.datasheet`), as a user reads a datasheet. Power densities
-are the stricter plane-wave equivalent of the solver's E and H (REFERENCES.md § 9).
+are the stricter plane-wave equivalent of the solver's E and H (docs/references.md § 9).
 
 Acceptance of the full-wave issue (auto model, peak evaluation, no ground reflection):
 * every point outside the element zone: prediction ≥ full-wave − 0.5 dB;

@@ -68,20 +68,27 @@ def limits(
 
 
 def _limits_json(table: LimitTable, frequency_mhz: float, tiers: dict[str, TierLimit]) -> str:
-    """INTERFACE.md's shape, with added keys (citation, band, printed, comparison)."""
-    return json.dumps(
-        {
-            "standard": table.key,
-            "frequency_mhz": _number(frequency_mhz),
-            "tiers": {tier: _tier_json(limit) for tier, limit in tiers.items()},
-            "title": table.title,
-            "citation": table.citation(),
-            "status": table.status,
-            "status_note": table.status_note,
-        },
-        ensure_ascii=False,
-        indent=2,
-    )
+    """INTERFACE.md's shape, with added keys (citation, band, printed, comparison, the
+    criterion and, where the table has one, the local criterion's limits as ``local``)."""
+    payload: dict[str, Any] = {
+        "standard": table.key,
+        "frequency_mhz": _number(frequency_mhz),
+        "tiers": {tier: _tier_json(limit) for tier, limit in tiers.items()},
+        "title": table.title,
+        "citation": table.citation(),
+        "status": table.status,
+        "status_note": table.status_note,
+        "criterion": table.criterion,
+    }
+    local = table.local()
+    if local is not None:
+        payload["local"] = {
+            "standard": local.key,
+            "citation": local.citation(),
+            "criterion": local.criterion,
+            "tiers": {tier: _tier_json(limit) for tier, limit in local.at(frequency_mhz).items()},
+        }
+    return json.dumps(payload, ensure_ascii=False, indent=2)
 
 
 def _tier_json(limit: TierLimit) -> dict[str, Any]:
@@ -188,6 +195,13 @@ def _limits_text(table: LimitTable, frequency_mhz: float, tiers: dict[str, TierL
     lines += sorted(marks) + notes
     if table.status != "confirmed":
         lines.append(f"status: {table.status}. {table.status_note}")
+    local = table.local()
+    if local is not None:
+        at = local.at(frequency_mhz)
+        values = ", ".join(f"{tier.replace('_', ' ')} {at[tier].comparison_power_density_w_m2()[0]:.4g} W/m²"
+                           for tier in at)
+        lines.append(f"Also to be met, the local criterion (spatial peak): {local.citation()}: {values}; "
+                     f"averaged over {at['general_public'].averaging_min:g} min.")
     return "\n".join(lines)
 
 

@@ -572,14 +572,10 @@ def boundary_directions(antenna: Antenna) -> dict[str, list[np.ndarray]]:
     return {"front": [front], "back": [-front], "side": [left, -left], "above": [up], "below": [-up]}
 
 
-def ray_extent(antenna: Antenna, direction: np.ndarray, limit_w_m2: float, reflection: float) -> float:
-    """Largest distance [m] along *direction* from the centre of radiation at which the
-    emitter alone reaches *limit_w_m2*; 0 where it never does (:func:`ray_extents`)."""
-    return ray_extents(antenna, direction, [limit_w_m2], reflection)[0]
-
-
 def ray_extents(antenna: Antenna, direction: np.ndarray, limits_w_m2: Sequence[float], reflection: float) -> list[float]:
-    """:func:`ray_extent` for several limits along one ray, sharing the scan.
+    """Largest distance [m] along *direction* from the centre of radiation at which the
+    emitter alone reaches each of *limits_w_m2*; 0 where it never does. One scan serves
+    every limit.
 
     Scans 400 log-spaced distances out to 1.5 times where a spherical bound with the peak
     gain falls below the lowest limit, then refines each limit's outermost crossing on finer

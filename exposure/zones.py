@@ -320,13 +320,3 @@ def signs_for(zones: Sequence[Zone], access_points, surfaces_elevation: dict[str
                 signs.append(Sign(zone.category, zone.word, surface, (round(edge.x, 3), round(edge.y, 3), elevation),
                                   f"edge of the category {zone.category} zone, {why}"))
     return signs
-
-
-def describe(zone: Zone) -> str:
-    """A short name of a zone for findings and steps: ``category 3 zone on Main roof (2.1 m²)``."""
-    return f"category {zone.category} zone on {zone.surface} ({_area(zone.area_m2)})"
-
-
-def _area(area_m2: float) -> str:
-    return f"{area_m2:.1f} m²" if area_m2 >= 0.05 else "under one grid cell"
-

@@ -479,7 +479,7 @@ def _surface_zones(site, surface, grid, cells: _Columns, spots: _Columns, limits
         for tier in TIERS:
             places[tier]["shares"][:, idx] = emitter_shares(limits, density, density_peak, evaluation, tier)
     return zones_of_surface(surface.name, polygon, grid, places, [a.id for a in site.antennas],
-                            [e.operator for e in site.record.emitters], grid_m)
+                            [e.operator for e in site.record.emitters], grid_m, public_parts=outer)
 
 
 def _update_headroom(headroom, ratio, total, reduced, evaluation) -> None:
@@ -711,11 +711,13 @@ def _validity_flags(site: LoadedSite, body_height: float, limits: SiteLimits, me
             crossing = _dish_beam_crossing(antenna, accessible, body_height)
             # only where the on-axis near-field bound (OET 65, with the site's reflection) could
             # reach the measurement threshold of the crossed surface's limit: a 0.1 W link dish is not a finding
-            i = site.antennas.index(antenna)
-            bound = float(aperture.near_field_power_density(antenna.net_power_w, antenna.diameter_m,
-                                                            antenna.aperture_efficiency)) * reflection_factor(site)
-            tier = ACCESS_TIER.get(next((s.access for s in accessible if s.name == crossing), "occupational"), "occupational")
-            if crossing and bound >= measure_above * float(limits.limit[tier][i]):
+            if crossing:
+                bound = float(aperture.near_field_power_density(
+                    antenna.net_power_w, antenna.diameter_m, antenna.aperture_efficiency)) * reflection_factor(site)
+                tier = ACCESS_TIER[next(s.access for s in accessible if s.name == crossing)]
+                if bound < measure_above * float(limits.limit[tier][site.antennas.index(antenna)]):
+                    crossing = None
+            if crossing:
                 flags.append(Flag(
                     "dish-near-field-crossing", "measure",
                     f"{antenna.id}: the near-field beam of the {antenna.diameter_m:g} m dish (out to "

@@ -21,7 +21,7 @@ from typing import Any
 
 from exposure.errors import InputError
 
-__all__ = ["RECORD_MAX_BYTES", "TABLE_MAX_BYTES", "read_input", "read_text", "parse_json", "printable"]
+__all__ = ["RECORD_MAX_BYTES", "TABLE_MAX_BYTES", "read_input", "read_text", "decode_text", "parse_json", "printable"]
 
 RECORD_MAX_BYTES = 20 * 1024 * 1024
 """Largest site record, pattern file or survey [bytes]: far above any real one (500 emitters
@@ -70,17 +70,21 @@ def read_input(path: str | Path, *, max_bytes: int = RECORD_MAX_BYTES, what: str
 
 
 def read_text(path: str | Path, *, max_bytes: int = RECORD_MAX_BYTES, what: str = "file") -> str:
-    """:func:`read_input` decoded as UTF-8 text (a byte-order mark is dropped)."""
-    data = read_input(path, max_bytes=max_bytes, what=what)
-    src = str(path)
+    """:func:`read_input` decoded as UTF-8 text (:func:`decode_text`)."""
+    return decode_text(read_input(path, max_bytes=max_bytes, what=what), str(path), what)
+
+
+def decode_text(data: bytes, source: str, what: str = "file") -> str:
+    """Input bytes as UTF-8 text (a byte-order mark dropped), refusing empty, binary or
+    non-UTF-8 content with one line naming *source*."""
     if not data.strip():
-        raise InputError(f"empty {what}", src)
+        raise InputError(f"empty {what}", source)
     if b"\x00" in data:
-        raise InputError(f"not a text file (binary content); the {what} must be UTF-8 text", src)
+        raise InputError(f"not a text file (binary content); the {what} must be UTF-8 text", source)
     try:
         return data.decode("utf-8-sig")
     except UnicodeDecodeError as exc:
-        raise InputError(f"not UTF-8 text (byte {exc.start})", src) from None
+        raise InputError(f"not UTF-8 text (byte {exc.start})", source) from None
 
 
 class DuplicateKeyError(ValueError):

@@ -17,7 +17,7 @@ from pydantic import BaseModel, ValidationError
 
 from exposure.antenna import EMITTER_KINDS, Antenna
 from exposure.errors import InputError
-from exposure.inputs import RECORD_MAX_BYTES, parse_json, printable, read_input
+from exposure.inputs import RECORD_MAX_BYTES, decode_text, parse_json, printable, read_input
 from exposure.records import (
     SCHEMA_VERSION,
     ArrayEmitter,
@@ -72,14 +72,7 @@ def read_document(path: str | Path) -> tuple[dict, bytes]:
     if path.suffix.lower() not in SUFFIXES:
         raise InputError(f"unknown file type {printable(path.suffix) or '(none)'!r}; use .toml or .json", src)
     raw = read_input(path, max_bytes=MAX_FILE_BYTES, what="site record")
-    if not raw.strip():
-        raise InputError("file is empty", src)
-    if b"\x00" in raw:
-        raise InputError("not a text file (binary content)", src)
-    try:
-        text = raw.decode("utf-8")
-    except UnicodeDecodeError as exc:
-        raise InputError(f"not UTF-8 text (byte {exc.start})", src) from None
+    text = decode_text(raw, src, "site record")
     if path.suffix.lower() == ".toml":
         try:
             data = tomllib.loads(text)

@@ -227,6 +227,7 @@ def zones_of_surface(
     ids: Sequence[str],
     operators: Sequence[str],
     cell_m: float,
+    public_parts: list[shapely.Polygon] | None = None,
 ) -> list[Zone]:
     """Every zone of one surface.
 
@@ -248,12 +249,17 @@ def zones_of_surface(
     cell_m : float
         Grid spacing [m]: a hot spot that no map zone holds gets a zone of one cell around it
         (a zone smaller than one cell is still a zone).
+    public_parts : list of shapely.Polygon, optional
+        :func:`zone_polygons` of the public limit, where the caller has them already.
     """
     x, y = places["x"], places["y"]
     zones: list[Zone] = []
     for category, tier, level in CATEGORY_LEVELS:
         total = places[tier]["total"]
-        parts = zone_polygons(grid.x_m, grid.y_m, grid.ratio[tier], level, surface)
+        if category == 2 and public_parts is not None:
+            parts = list(public_parts)
+        else:
+            parts = zone_polygons(grid.x_m, grid.y_m, grid.ratio[tier], level, surface)
         covered = np.zeros(len(x), dtype=bool)
         for p in parts:
             covered |= contains(p, x, y)
@@ -263,23 +269,22 @@ def zones_of_surface(
             parts = _polygons(shapely.intersection(shapely.union_all(parts + squares), surface))
         for polygon in parts:
             inside = contains(polygon, x, y)
+            if not inside.any():  # a sliver between cell centres: the places within a cell of it speak for it
+                inside = contains(polygon.buffer(cell_m), x, y)
+            if not inside.any():
+                inside = np.arange(len(x)) == int(np.argmax(total))  # at worst, the surface's own maximum
             shares = places[tier]["shares"][:, inside]
-            best, where, other = 0.0, (0.0, 0.0, 0.0), 0.0
-            if inside.any():
-                k = np.flatnonzero(inside)[int(np.argmax(total[inside]))]
-                best, where = float(total[k]), (float(x[k]), float(y[k]), float(places[tier]["z"][k]))
-                other_tier = "occupational" if tier == "general_public" else "general_public"
-                other = float(places[other_tier]["total"][k])
-            emitter_max = shares.max(axis=1) if shares.shape[1] else np.zeros(len(ids))
+            k = np.flatnonzero(inside)[int(np.argmax(total[inside]))]
+            where = (float(x[k]), float(y[k]), float(places[tier]["z"][k]))
+            emitter_max = shares.max(axis=1)
             responsible = [i for i in range(len(ids)) if emitter_max[i] >= RESPONSIBILITY_SHARE]
-            off = _greedy_power_down(shares) if shares.shape[1] else []
-            max_ratio = {tier: best, ("occupational" if tier == "general_public" else "general_public"): other}
+            off = _greedy_power_down(shares)
             zones.append(Zone(
                 surface=surface_name,
                 category=category,
                 polygon=polygon,
                 area_m2=round(float(polygon.area), 4),
-                max_ratio={t: max_ratio[t] for t in ("general_public", "occupational")},
+                max_ratio={t: float(places[t]["total"][k]) for t in ("general_public", "occupational")},
                 max_at_m=tuple(round(v, 3) for v in where),
                 responsible_emitters=tuple(ids[i] for i in responsible),
                 responsible_operators=tuple(dict.fromkeys(operators[i] for i in responsible)),

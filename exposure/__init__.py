@@ -14,27 +14,29 @@ In a notebook::
 
 from __future__ import annotations
 
-__version__ = "0.1.0"
+from exposure._version import __version__
+
+__all__ = ["__version__", "assess", "load_site"]
 
 
 def load_site(path, *, standard=None, limits_file=None):
-    """Read and validate a site record (see :func:`exposure.loader.load_site`)."""
-    from exposure.loader import load_site as _load_site
+    """Read and validate a site record (see :func:`exposure.site.load_site`)."""
+    from exposure.site import load_site as _load_site
 
     return _load_site(path, standard=standard, limits_file=limits_file)
 
 
-def assess(site, *, standard=None, limits_file=None, grid_m=None, measure_above=0.5, progress=None):
+def assess(site, *, standard=None, limits_file=None, grid_m=None, measure_above=0.5, progress=None, sections=False):
     """Assess a whole site: a path to a record, or a site from :func:`load_site`.
 
-    Returns an :class:`exposure.results.Assessment` with the same content as
+    Returns an :class:`exposure.assessment.results.Assessment` with the same content as
     ``exposure assess --json`` (``.to_json()``), plus the surface grids for maps.
     """
     from exposure.assessment import assess as _assess
-    from exposure.loader import LoadedSite
+    from exposure.site.model import Site
 
-    if not isinstance(site, LoadedSite):
+    if not isinstance(site, Site):
         site = load_site(site, standard=standard, limits_file=limits_file)
     elif standard is not None or limits_file is not None:
         site = load_site(site.path, standard=standard, limits_file=limits_file)
-    return _assess(site, grid_m=grid_m, measure_above=measure_above, progress=progress)
+    return _assess(site, grid_m=grid_m, measure_above=measure_above, progress=progress, sections=sections)

@@ -1,6 +1,6 @@
 """One emitter as the field models see it: plain numbers in SI and the site frame.
 
-The site record (``exposure.records``) is validated and converted into an ``Antenna``;
+The site record (``exposure.site.record``) is validated and converted into an ``Antenna``;
 the physics modules take ``Antenna`` objects and numpy arrays only, never records.
 
 Site frame: x east, y north, z up [m]. Azimuth clockwise from +y (north) [deg].
@@ -10,14 +10,11 @@ Tilts are positive downwards [deg]. ``elevation_deg`` (dishes) is positive upwar
 from __future__ import annotations
 
 from dataclasses import dataclass, field
-from typing import Literal
 
 import numpy as np
 
 from exposure.units import ERP_TO_EIRP, db_to_linear, wavelength_m
-
-EmitterKind = Literal["panel", "omni", "dish", "array", "directional"]
-EMITTER_KINDS: tuple[str, ...] = ("panel", "omni", "dish", "array", "directional")
+from exposure.vocabulary import EmitterKind
 
 DEFAULT_SIDELOBE_FLOOR_DB = 13.0
 """Side-lobe floor where a record gives none [dB]: a uniform array's first side lobe is

@@ -15,10 +15,17 @@ Each returns an :class:`Exemption` with the threshold, the verdict and the citat
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
+from typing import Any
 
-from exposure.errors import InputError, OutOfRangeError
-from exposure.units import SPEED_OF_LIGHT
+from exposure.antenna import Antenna
+from exposure.errors import InputError, OutOfRangeError, UnknownKeyError
+from exposure.limits import load_standard
+from exposure.models import REFLECTION_FACTORS, boresight_distance_to_limit, model_for
+from exposure.models.aperture import dish_gain
+from exposure.site.fields import MAX_GAIN_DBI, MIN_GAIN_DBI
+from exposure.units import SPEED_OF_LIGHT, linear_to_db, wavelength_m
+from exposure.vocabulary import EMITTER_KINDS, MODELS, REFLECTIONS, SECTOR_KINDS, TIERS
 
 __all__ = [
     "Exemption",
@@ -28,6 +35,8 @@ __all__ = [
     "mpe_exemption",
     "sar_threshold_mw",
     "sar_exemption",
+    "ScreenRequest",
+    "screen_emitter",
 ]
 
 CITATION = "47 CFR § 1.1307(b)(3) (rules of FCC 19-126, 2019)"
@@ -258,3 +267,270 @@ def sar_exemption(power_w: float, frequency_mhz: float, distance_m: float) -> Ex
         citation=f"{CITATION}, (i)(B)",
         note="SAR-based threshold P_th, formula from memory (docs/references.md § 2); compare the larger of power and ERP",
     )
+
+
+# --- the screen computation of one emitter (``exposure screen``) -----------------------------
+
+SCREEN_ORDER: tuple[str, ...] = ("spherical", "cylindrical", "synthetic", "aperture", "endfire")
+"""The models ``exposure screen`` shows side by side, in this order."""
+
+
+@dataclass(frozen=True)
+class ScreenRequest:
+    """One emitter as ``exposure screen`` takes it: quantities at full output, None where not
+    given. Units are in the names; ``reflection`` and ``standard`` are keys."""
+
+    frequency_mhz: float | None = None
+    eirp_w: float | None = None
+    power_w: float | None = None
+    gain_dbi: float | None = None
+    line_loss_db: float | None = None
+    model: str = "auto"
+    kind: str | None = None
+    h_beamwidth_deg: float | None = None
+    v_beamwidth_deg: float | None = None
+    length_m: float | None = None
+    diameter_m: float | None = None
+    aperture_efficiency: float = 0.55
+    reflection: str = "typical"
+    standard: str = "fcc"
+    distance_m: float | None = None
+
+
+def _check(name: str, value: float | None, *, low: float = 0.0, high: float = math.inf, low_inclusive: bool = False) -> None:
+    if value is None:
+        return
+    ok = math.isfinite(value) and (value >= low if low_inclusive else value > low) and value <= high
+    if not ok:
+        bound = f"{'>=' if low_inclusive else '>'} {low:g}" + (f" and <= {high:g}" if math.isfinite(high) else "")
+        raise InputError(f"{name} {value!r}: must be a finite number {bound}")
+
+
+def screen_emitter(o: ScreenRequest) -> dict[str, Any]:
+    """Distances along the main beam at which each applicable model falls to each tier's limit.
+
+    Parameters
+    ----------
+    o : ScreenRequest
+        One emitter's quantities, as ``exposure screen`` takes them (full output).
+
+    Returns
+    -------
+    dict
+        The content of ``exposure screen --json`` (INTERFACE.md keys first): the governing
+        model and its boundary per tier, every applicable model side by side, what the others
+        lack, and with ``distance_m`` and the FCC table the exemption test of
+        :func:`mpe_exemption`. ``eirp_w`` and ``erp_w`` are at full output, as everywhere.
+
+    Raises
+    ------
+    InputError
+        A quantity out of range or missing, naming the option.
+
+    Notes
+    -----
+    ``auto`` is the site assessment's model for the emitter (:func:`exposure.models.model_for`,
+    the one rule), or the spherical model where the quantities do not describe the aperture.
+    Distances come from :func:`exposure.models.boresight_distance_to_limit`.
+    """
+
+    if o.frequency_mhz is None:
+        raise InputError("--frequency-mhz is required")
+    _check("--frequency-mhz", o.frequency_mhz)
+    # the plausibility ranges of a site record's emitter (exposure.site.record)
+    _check("--eirp-w", o.eirp_w)
+    _check("--eirp-w", o.eirp_w, low=1e-6, high=1e12, low_inclusive=True)
+    _check("--power-w", o.power_w)
+    _check("--power-w", o.power_w, low=1e-6, high=1e7, low_inclusive=True)
+    if o.gain_dbi is not None and not math.isfinite(o.gain_dbi):
+        raise InputError(f"--gain-dbi {o.gain_dbi!r}: must be a finite number")
+    _check("--gain-dbi", o.gain_dbi, low=MIN_GAIN_DBI, high=MAX_GAIN_DBI, low_inclusive=True)
+    _check("--line-loss-db", o.line_loss_db, low_inclusive=True, high=30.0)
+    _check("--h-beamwidth-deg", o.h_beamwidth_deg, high=360.0)
+    _check("--v-beamwidth-deg", o.v_beamwidth_deg, high=180.0)
+    _check("--length-m", o.length_m)
+    _check("--diameter-m", o.diameter_m)
+    _check("--aperture-efficiency", o.aperture_efficiency, high=1.0)
+    _check("--distance-m", o.distance_m)
+    if o.model not in MODELS:
+        raise UnknownKeyError(f"--model {o.model!r}: unknown model; choose one of: {', '.join(MODELS)}")
+    if o.reflection not in REFLECTIONS:
+        raise UnknownKeyError(f"--reflection {o.reflection!r}: unknown; choose one of: {', '.join(REFLECTIONS)}")
+    if o.eirp_w is not None and o.power_w is not None:
+        raise InputError("--eirp-w and --power-w: give one or the other, not both")
+    if o.eirp_w is None and o.power_w is None:
+        raise InputError("--eirp-w or --power-w is required")
+    if o.eirp_w is not None and o.line_loss_db is not None:
+        raise InputError("--line-loss-db applies to --power-w only (an EIRP already includes the line loss)")
+
+    table = load_standard(o.standard)  # unknown standard -> exit 2 with the choices
+    limits = {tier: table.power_density_limit_w_m2(o.frequency_mhz, tier) for tier in TIERS}
+
+    kind = _kind(o)
+    lam = float(wavelength_m(o.frequency_mhz))
+    gain_source = "--gain-dbi"
+    if o.gain_dbi is not None:
+        gain = o.gain_dbi
+    elif kind == "dish":
+        gain = float(linear_to_db(dish_gain(o.diameter_m, lam, o.aperture_efficiency)))
+        gain_source = "dish formula eta (pi D / lambda)^2"
+    elif o.power_w is not None:
+        raise InputError("--power-w needs --gain-dbi (or --eirp-w instead)")
+    else:
+        gain = None  # EIRP only: the spherical model needs nothing else
+    if o.power_w is not None:
+        net_power = o.power_w * 10.0 ** (-(o.line_loss_db or 0.0) / 10.0)
+    else:
+        net_power = o.eirp_w / 10.0 ** ((gain or 0.0) / 10.0)
+    antenna = Antenna(
+        id="screen",
+        kind=kind,
+        frequency_mhz=o.frequency_mhz,
+        net_power_w=net_power,
+        gain_dbi=gain if gain is not None else 0.0,
+        position_m=(0.0, 0.0, 0.0),
+        h_beamwidth_deg=o.h_beamwidth_deg if kind in SECTOR_KINDS else None,
+        v_beamwidth_deg=o.v_beamwidth_deg,
+        length_m=o.length_m,
+        diameter_m=o.diameter_m,
+        aperture_efficiency=o.aperture_efficiency,
+    )
+
+    needs = _needs(o, kind, gain is not None)
+    applicable = [m for m in SCREEN_ORDER if not needs[m]]
+    if o.model == "auto":  # the assessment's rule, where the options describe what it needs
+        rule = model_for(antenna)
+        chosen = rule if rule in applicable else "spherical"
+    else:
+        chosen = o.model
+        if needs[chosen]:
+            raise InputError(f"--model {chosen} needs {needs[chosen]}")
+    # without --v-beamwidth-deg the spherical and cylindrical models get a vertical cut that
+    # is flat (0 dB everywhere): on the main beam, where the distances are taken, the
+    # vertical pattern is 1 anyway, so the distances are exact
+    flat = antenna if (kind == "dish" or o.v_beamwidth_deg is not None) else _flat_vertical(antenna)
+
+    boundaries: dict[str, dict[str, float]] = {}
+    for name in applicable:
+        use = flat if name in ("spherical", "cylindrical") else antenna
+        boundaries[name] = {
+            tier: round(boresight_distance_to_limit(use, limits[tier], model=name, reflection=o.reflection), 4)
+            for tier in TIERS
+        }
+    if o.model == "auto":  # the site assessment's model for this emitter, spatial peak
+        use = antenna if chosen != "spherical" else flat
+        primary = {
+            tier: round(boresight_distance_to_limit(use, limits[tier], model="auto", reflection=o.reflection), 4)
+            for tier in TIERS
+        }
+    else:
+        primary = boundaries[chosen]
+
+    result: dict[str, Any] = {
+        "model": chosen,
+        "eirp_w": antenna.eirp_w,
+        "erp_w": antenna.erp_w,
+        "boundary_m": primary,
+        "model_requested": o.model,
+        "frequency_mhz": o.frequency_mhz,
+        "net_power_w": net_power if gain is not None else None,
+        "gain_dbi": gain,
+        "gain_source": gain_source if gain is not None else None,
+        "kind": kind,
+        "standard": o.standard,
+        "citation": table.citation(),
+        "reflection": o.reflection,
+        "reflection_factor": REFLECTION_FACTORS[o.reflection],
+        "limits_w_m2": limits,
+        "models": boundaries,
+        "not_applicable": {m: f"needs {needs[m]}" for m in SCREEN_ORDER if needs[m]},
+        "governing": {"model": o.model, "resolves_to": chosen, "why": _why(o.model, chosen, kind)},
+    }
+    if o.kind is None:
+        result["kind_note"] = (
+            f"kind {kind} inferred from the options given; give --kind (and --h-beamwidth-deg for a panel, "
+            "array or directional antenna) to say what it is"
+        )
+    if o.distance_m is not None:
+        if o.standard == "fcc":
+            ex = mpe_exemption(antenna.erp_w, o.frequency_mhz, o.distance_m)
+            result["exemption"] = {
+                "erp_threshold_w": ex.threshold,
+                "exempt": ex.exempt,
+                "distance_m": o.distance_m,
+                "applicable": ex.applicable,
+                "rule": ex.rule,
+                "citation": ex.citation,
+                "note": ex.note,
+            }
+        else:
+            result["exemption_note"] = "--distance-m: the exemption test is that of 47 CFR 1.1307(b)(3), for --standard fcc only"
+    return result
+
+
+def _kind(o: ScreenRequest) -> str:
+    """The emitter kind: ``--kind``, or inferred as before ``--kind`` existed; a sector kind
+    without its horizontal beamwidth is refused rather than taken for an omni."""
+    if o.kind is None:
+        if o.diameter_m is not None:
+            return "dish"
+        return "panel" if o.h_beamwidth_deg is not None and o.h_beamwidth_deg < 360.0 else "omni"
+    if o.kind not in EMITTER_KINDS:
+        raise UnknownKeyError(f"--kind {o.kind!r}: unknown; choose one of: {', '.join(EMITTER_KINDS)}")
+    if o.kind in SECTOR_KINDS and o.h_beamwidth_deg is None:
+        raise InputError(
+            f"--kind {o.kind} needs --h-beamwidth-deg (its horizontal half-power beamwidth); "
+            "for an omnidirectional antenna give --kind omni"
+        )
+    if o.kind == "dish" and o.diameter_m is None and o.gain_dbi is None:
+        raise InputError("--kind dish needs --diameter-m or --gain-dbi")
+    if o.kind != "dish" and o.diameter_m is not None:
+        raise InputError(f"--diameter-m is for dishes, not --kind {o.kind}")
+    return o.kind
+
+
+def _why(requested: str, chosen: str, kind: str) -> str:
+    if requested != "auto":
+        return f"requested with --model {requested}"
+    reason = {
+        "synthetic": "the synthetic near-field model with the spatial-peak margin, capped by the far field at peak gain",
+        "aperture": "OET 65's aperture (dish) model",
+        "endfire": "the spherical model measured from the nearer end of the antenna's length",
+        "spherical": "the spherical model (the options do not describe the aperture)",
+    }[chosen]
+    extra = (
+        "; OET 65's cylindrical form is a spatial average and the power-sum synthetic form omits the Fresnel-zone "
+        "focusing, both shown for comparison only"
+        if chosen == "synthetic"
+        else ""
+    )
+    return f"auto is the site assessment's model for a {kind}: {reason}; never below a full-wave reference{extra}"
+
+
+def _needs(o: ScreenRequest, kind: str, gain_known: bool) -> dict[str, str]:
+    """For each model, the options it lacks ('' where it applies)."""
+    power = "" if gain_known else "--gain-dbi (net power = EIRP / gain)"
+
+    def join(*parts: str) -> str:
+        return ", ".join(p for p in parts if p)
+
+    not_linear = {"dish": "a panel, omni or array (not a dish)", "directional": "a panel, omni or array (not --kind directional)"}.get(kind, "")
+    return {
+        "spherical": "",
+        "cylindrical": not_linear or join("" if o.length_m is not None else "--length-m", power),
+        "synthetic": not_linear
+        or join(
+            "" if o.length_m is not None else "--length-m",
+            "" if o.v_beamwidth_deg is not None else "--v-beamwidth-deg",
+            power,
+        ),
+        "aperture": "" if kind == "dish" else "--diameter-m",
+        "endfire": "--kind directional"
+        if kind != "directional"
+        else join("" if o.length_m is not None else "--length-m", "" if o.v_beamwidth_deg is not None else "--v-beamwidth-deg"),
+    }
+
+
+def _flat_vertical(antenna):
+    """The same emitter with a vertical cut of 0 dB everywhere (180 deg wide, no floor)."""
+    return replace(antenna, v_beamwidth_deg=180.0, sidelobe_floor_db=0.0)

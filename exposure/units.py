@@ -19,6 +19,9 @@ DBD_TO_DBI = 2.15
 ERP_TO_EIRP = 1.64
 """EIRP / ERP as a linear factor, the dipole gain (47 CFR 1.1307(b)(3), OET 65)."""
 
+BEAMWIDTH_DIRECTIVITY_DEG2 = 41_253.0
+"""Square degrees in a sphere, 4π (180/π)²: D ≈ 41253/(θh·θv) (common practice)."""
+
 
 def db_to_linear(db):
     """Power ratio from decibels: ``10**(db/10)``."""

@@ -20,7 +20,7 @@ from typer.testing import CliRunner
 
 from exposure.assessment import assess, body_offsets, probe, reduce_over_height
 from exposure.cli import app
-from exposure.loader import load_site
+from exposure.site import load_site
 
 runner = CliRunner()
 FCC_GP_ABOVE_1500 = 10.0  # W/m², 47 CFR 1.1310 Table 1 (1.0 mW/cm²), confirmed

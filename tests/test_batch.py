@@ -152,7 +152,7 @@ def test_batch_result_is_the_single_site_assessment(portfolio, local_run):
     """A batch must not change a site's result: the same verdict and ratios as assessing the
     record alone (consistency with exposure.assessment.assess, same grid)."""
     from exposure.assessment import assess
-    from exposure.loader import load_site
+    from exposure.site import load_site
 
     sites, _ = portfolio
     out, _ = local_run
@@ -300,16 +300,16 @@ def test_crash_while_writing_a_report_leaves_no_partial_output(tmp_path, monkeyp
     traceback) and the run goes on; an interrupt ends the run (exit 130, no summary). The
     rerun with --resume completes it."""
     import exposure.report
-    from exposure.io import atomic_write
+    from exposure.atomic import atomic_write
 
     sites = copy_samples(tmp_path / "sites")
     out = tmp_path / "out"
     real_write_report = exposure.report.write_report
     victim = tomllib.loads(SAMPLE_SITES[0].read_text())["site"]["id"]
 
-    def crashing_write_report(assessment, site, path):
-        if site.id != victim:
-            return real_write_report(assessment, site, path)
+    def crashing_write_report(assessment, path):
+        if assessment.site_id != victim:
+            return real_write_report(assessment, path)
 
         def write_half(handle):
             handle.write(b"%PDF-1.4 half a report")

@@ -9,15 +9,7 @@ from hypothesis import strategies as st
 
 from exposure.antenna import Antenna
 from exposure.errors import InputError
-from exposure.frames import (
-    antenna_axes,
-    direction_from_angles,
-    local_coordinates,
-    mechanical_downtilt_deg,
-    spherical_angles,
-    to_antenna_frame,
-    to_site_direction,
-)
+from exposure.models.frames import antenna_axes, direction_from_angles, local_coordinates, mechanical_downtilt_deg, spherical_angles, to_antenna_frame, to_site_direction
 
 
 def _antenna(**kw) -> Antenna:

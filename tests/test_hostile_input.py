@@ -330,12 +330,12 @@ def test_full_disk_while_writing_is_exit_2_and_leaves_nothing(record, write_reco
     environment: exit 2 with one line, and neither the PDF nor its JSON nor a temporary file."""
     import errno
 
-    import exposure.io
+    import exposure.atomic
 
     def full(fd):
         raise OSError(errno.ENOSPC, "No space left on device")
 
-    monkeypatch.setattr(exposure.io.os, "fsync", full)
+    monkeypatch.setattr(exposure.atomic.os, "fsync", full)
     out = tmp_path / "out"
     result = run("report", write_record(record), "-o", out / "r.pdf", "-q", "--grid-m", "1")
     refused(result, "No space left on device")

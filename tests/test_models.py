@@ -10,24 +10,13 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from exposure import aperture, frames, synthetic
+from exposure.models import aperture, frames, synthetic
 from exposure.antenna import Antenna, PatternCuts
-from exposure.cylindrical import crossover_distance_m, cylindrical_power_density
+from exposure.models.cylindrical import crossover_distance_m, cylindrical_power_density
 from exposure.errors import InputError, UnknownKeyError
-from exposure.farfield import spherical_power_density
-from exposure.field import (
-    CHUNK_POINTS,
-    MODELS,
-    REFLECTION_FACTORS,
-    beam_direction,
-    boresight_distance_to_limit,
-    induction_margin,
-    minimum_distance_m,
-    model_for,
-    power_density,
-    power_density_along_beam,
-)
-from exposure.frames import local_coordinates
+from exposure.models.farfield import spherical_power_density
+from exposure.models import CHUNK_POINTS, MODELS, REFLECTION_FACTORS, beam_direction, boresight_distance_to_limit, induction_margin, minimum_distance_m, model_for, power_density, power_density_along_beam
+from exposure.models.frames import local_coordinates
 from exposure.patterns import pattern_efficiency, pattern_for
 
 PANEL = Antenna(

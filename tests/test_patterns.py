@@ -11,24 +11,8 @@ from hypothesis import strategies as st
 
 from exposure.antenna import Antenna, PatternCuts
 from exposure.errors import InputError
-from exposure.patterns import (
-    DishPattern,
-    OmniPattern,
-    SectorPattern,
-    TabulatedPattern,
-    array_envelope_gain,
-    check_gain_beamwidths,
-    directivity_dbi,
-    f699_gain,
-    f699_gain_dbi,
-    omni_gain,
-    pattern_efficiency,
-    pattern_for,
-    read_pattern_csv,
-    sector_gain,
-    sphere_integral,
-    tabulated_gain,
-)
+from exposure.patterns import DishPattern, OmniPattern, SectorPattern, TabulatedPattern, array_envelope_gain, check_gain_beamwidths, directivity_dbi, f699_gain, f699_gain_dbi, omni_gain, pattern_efficiency, pattern_for, sector_gain, sphere_integral, tabulated_gain
+from exposure.site.pattern_file import read_pattern_csv
 
 
 def att(g):
@@ -301,7 +285,7 @@ def test_closed_form_erf_against_the_standard_library():
     against Python's math.erf (a general-purpose reference) to its stated 5e-7."""
     import math
 
-    from exposure.patterns import _erf_nonnegative
+    from exposure.patterns.base import _erf_nonnegative
 
     x = np.linspace(0.0, 6.0, 2001)
     reference = np.array([math.erf(v) for v in x])

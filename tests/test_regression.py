@@ -47,18 +47,18 @@ def test_each_pattern_is_built_once_per_assessment(monkeypatch):
     """Patterns and frames are prepared once per emitter per assessment (they were rebuilt on
     every field call: 478 times for the 7-emitter demo roof); the result is unchanged (the
     regression values above)."""
-    import exposure.field
+    import exposure.models.prepared
     from exposure.assessment import assess
-    from exposure.loader import load_site
+    from exposure.site import load_site
 
     built: list[str] = []
-    real = exposure.field.pattern_for
+    real = exposure.models.prepared.pattern_for
 
     def counting(antenna):
         built.append(antenna.id)
         return real(antenna)
 
-    monkeypatch.setattr(exposure.field, "pattern_for", counting)
+    monkeypatch.setattr(exposure.models.prepared, "pattern_for", counting)
     site = load_site(REPO / "sample_sites" / "rooftop-larkspur.toml")
     assess(site, grid_m=1.0)
     assert sorted(built) == sorted(a.id for a in site.antennas)

@@ -21,7 +21,7 @@ from typer.testing import CliRunner
 
 from exposure.assessment import assess
 from exposure.cli import app
-from exposure.loader import load_site
+from exposure.site import load_site
 from exposure.report import render_pdf, write_report
 from exposure.report import text as fmt
 
@@ -101,7 +101,7 @@ class Rendered:
 
 
 def rendered(site, result) -> Rendered:
-    data = render_pdf(result, site, date=DATE)
+    data = render_pdf(result, date=DATE)
     return Rendered(site, result, data, *pdf_text(data))
 
 
@@ -109,7 +109,7 @@ def rendered(site, result) -> Rendered:
 def sample(request) -> Rendered:
     """A sample site assessed on a coarse grid and rendered once."""
     site = load_site(request.param)
-    return rendered(site, assess(site, grid_m=COARSE_GRID_M.get(request.param.name, 2.0)))
+    return rendered(site, assess(site, grid_m=COARSE_GRID_M.get(request.param.name, 2.0), sections=True))
 
 
 @pytest.fixture(scope="module")
@@ -117,7 +117,7 @@ def exceedance(tmp_path_factory) -> Rendered:
     path = tmp_path_factory.mktemp("exceedance") / "roof-east.json"
     path.write_text(json.dumps(public_exceedance_record()), encoding="utf-8")
     site = load_site(path)
-    return rendered(site, assess(site))
+    return rendered(site, assess(site, sections=True))
 
 
 def test_every_section_is_present(sample):
@@ -248,23 +248,23 @@ def test_public_exceedance_states_mitigation(exceedance):
 
 
 def test_same_input_gives_same_pdf(exceedance):
-    again = render_pdf(exceedance.result, exceedance.site, date=DATE)
+    again = render_pdf(exceedance.result, date=DATE)
     assert pdf_text(again)[2] == exceedance.text
     assert again == exceedance.data  # invariant mode: byte for byte
 
 
 def test_failure_while_rendering_leaves_no_file(exceedance, tmp_path, monkeypatch):
-    import exposure.report.maps
+    import exposure.report.section_figure
 
     site, result = exceedance.site, exceedance.result
 
     def broken(*args, **kwargs):
         raise RuntimeError("renderer failed half-way")
 
-    monkeypatch.setattr(exposure.report.maps, "section_figure", broken)  # after the map is drawn
+    monkeypatch.setattr(exposure.report.section_figure, "section_figure", broken)  # after the map is drawn
     target = tmp_path / "out" / "site.pdf"
     with pytest.raises(RuntimeError, match="half-way"):
-        write_report(result, site, target)
+        write_report(result, target)
     assert not target.exists()
     assert not target.parent.exists() or not any(target.parent.iterdir())
 
@@ -281,7 +281,7 @@ def test_failure_while_writing_keeps_the_old_file(exceedance, tmp_path, monkeypa
 
     monkeypatch.setattr(os, "fsync", broken_fsync)
     with pytest.raises(OSError, match="disk full"):
-        write_report(result, site, target, date=DATE)
+        write_report(result, target, date=DATE)
     assert target.read_bytes() == b"old report"
     assert [p.name for p in tmp_path.iterdir()] == ["site.pdf"]
 
@@ -344,7 +344,7 @@ def test_outputs_get_the_usual_file_mode(tmp_path):
     import os
     import stat
 
-    from exposure.io import atomic_write_bytes
+    from exposure.atomic import atomic_write_bytes
 
     mask = os.umask(0o022)
     try:

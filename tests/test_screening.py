@@ -9,7 +9,7 @@ import pytest
 
 from exposure.antenna import Antenna
 from exposure.errors import InputError, OutOfRangeError
-from exposure.field import power_density
+from exposure.models import power_density
 from exposure.screening import (
     mpe_erp_threshold_w,
     mpe_exemption,
@@ -39,7 +39,7 @@ def fcc_general_population_w_m2(f_mhz: float) -> float:
 def test_erp_threshold_is_the_limit_reached_by_the_spherical_model(f_mhz, multiple):
     """docs/references.md § 2 derived check: each row of Table 1 of (i)(C) is the general-population
     limit reached at R by the spherical model with full reflection (x4) and EIRP = 1.64 ERP
-    (to 0.3 %). The spherical model here is exposure.field's, with reflection 'full'.
+    (to 0.3 %). The spherical model here is exposure.models', with reflection 'full'.
     R is 1, 3 and 20 m, or that many times lambda/2pi where the table starts farther out."""
     distance_m = multiple * max(1.0, 299.792458 / f_mhz / (2 * math.pi))
     erp = mpe_erp_threshold_w(f_mhz, distance_m)

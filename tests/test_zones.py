@@ -19,8 +19,8 @@ from typer.testing import CliRunner
 from exposure.assessment import assess
 from exposure.cli import app
 from exposure.limits import load_standard
-from exposure.loader import load_site
-from exposure.zones import SIGN_WORDS, category_of, category_thresholds_w_m2
+from exposure.site import load_site
+from exposure.assessment.zones import SIGN_WORDS, category_of, category_thresholds_w_m2
 
 runner = CliRunner()
 
@@ -146,7 +146,7 @@ def test_a_penthouse_hole_has_no_grid_point_maximum_or_zone(load):
         assert not penthouse.contains(shapely.Point(point[:2]))
     for zone in result.zones:
         assert zone.polygon.intersection(penthouse).area < 1e-9
-    from exposure.report.maps import surfaces_along
+    from exposure.report.section_figure import surfaces_along
 
     s = np.linspace(0, 20, 401)
     (surface, mask), = surfaces_along(result, (10.0, 0.0), 0.0, s)  # the section line through the penthouse
@@ -180,10 +180,10 @@ def test_overlapping_surfaces_and_bad_holes_are_refused(tmp_path):
 
 def test_sample_roof_areas_match_shapely():
     """The demo roof's areas (outline less the penthouse) against shapely computed here."""
-    from exposure.loader import load_site as load_file
+    from exposure.site import load_site as load_file
 
     sample = load_file(__import__("conftest").REPO / "sample_sites" / "rooftop-larkspur.toml")
-    roof = next(s for s in sample.record.surfaces if s.name == "Main roof")
+    roof = next(s for s in sample.surfaces if s.name == "Main roof")
     expected = shapely.Polygon(roof.outline, roof.holes).area
     assert math.isclose(expected, 28 * 42 - 14 * 10 - 30)
 
@@ -213,7 +213,7 @@ def test_probe_at_a_work_position_gives_the_work_positions_value(load, tmp_path)
 def test_an_omni_first_site_reports_and_omnis_get_no_boresight_arrow(tmp_path):
     """A site whose first emitter is an omni crashed `report`; elsewhere an omni was drawn with
     the previous emitter's boresight arrow. Omni labels carry no arrow tip."""
-    from exposure.report.maps import _emitter_labels, _Labels
+    from exposure.report.labels import Labels, emitter_labels
 
     omni = {"id": "O1", "operator": "Op O (invented)", "kind": "omni", "frequency_mhz": 850, "power_w": 40,
             "gain_dbi": 10, "x_m": 5, "y_m": 5, "z_m": 3, "v_beamwidth_deg": 8, "length_m": 1.5}
@@ -224,7 +224,7 @@ def test_an_omni_first_site_reports_and_omnis_get_no_boresight_arrow(tmp_path):
     result = runner.invoke(app, ["report", str(path), "-o", str(tmp_path / "omni.pdf"), "-q", "--grid-m", "1"])
     assert result.exit_code == 0, result.output
     assessed = assess(load_site(path))
-    placed = _emitter_labels(assessed, _Labels(0.05), 1.0)
+    placed = emitter_labels(assessed, Labels(0.05), 1.0)
     tips = {e.id: tip for e, tip, *_ in placed}
     assert tips["O1"] is None and tips["O2"] is None and tips["P1"] is not None
 

@@ -14,7 +14,7 @@ from typing import Annotated
 import typer
 from typer.core import TyperGroup
 
-from exposure import __version__
+from exposure._version import __version__
 from exposure.errors import InputError
 from exposure.inputs import printable
 

@@ -40,27 +40,28 @@ QuietOption = Annotated[bool, typer.Option("--quiet", "-q", help="No progress ba
 def check_grid(grid_m: float | None) -> None:
     """Refuse a --grid-m outside the records' range before any file is read."""
     from exposure.errors import InputError
-    from exposure.records import GRID_M_RANGE
+    from exposure.site.budget import GRID_M_RANGE
 
     low, high = GRID_M_RANGE
     if grid_m is not None and not (math.isfinite(grid_m) and low <= grid_m <= high):
         raise InputError(f"--grid-m: {grid_m:g} m must be between {low:g} and {high:g} m")
 
 
-def run_assessment(site_file: Path, standard, limits_file, grid_m, measure_above, quiet, before=None):
+def run_assessment(site_file: Path, standard, limits_file, grid_m, measure_above, quiet, before=None, sections=False):
     """Load and assess one site, with a progress bar on a terminal; returns (site, result).
 
-    ``before(site)``, if given, runs after loading and before the assessment (output checks).
+    ``before(site)``, if given, runs after loading and before the assessment (output checks);
+    ``sections`` also computes the worksheet's elevation sections.
     """
     from exposure.assessment import assess
-    from exposure.loader import load_site
+    from exposure.site import load_site
 
     check_grid(grid_m)
     site = load_site(site_file, standard=standard, limits_file=limits_file)
     if before is not None:
         before(site)
     with Progress(f"assessing {site.id}", quiet=quiet) as progress:
-        result = assess(site, grid_m=grid_m, measure_above=measure_above, progress=progress)
+        result = assess(site, grid_m=grid_m, measure_above=measure_above, progress=progress, sections=sections)
     return site, result
 
 
@@ -86,7 +87,7 @@ def assess(
         if not quiet:
             print_cautions()
     if fail_on is not None:
-        from exposure.results import VERDICTS
+        from exposure.vocabulary import VERDICTS
 
         if VERDICTS.index(result.verdict) >= VERDICTS.index(fail_on.value):
             raise typer.Exit(EXIT_FAIL_ON)

@@ -13,8 +13,8 @@ def init(
     force: Annotated[bool, typer.Option("--force", help="Overwrite an existing file.")] = False,
 ) -> None:
     """Write a commented template site record to start from."""
+    from exposure.atomic import atomic_write_bytes
     from exposure.errors import InputError
-    from exposure.io import atomic_write_bytes
 
     if path.exists() and not force:
         raise InputError("file exists; choose another path or pass --force", str(path))

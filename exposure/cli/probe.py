@@ -48,7 +48,7 @@ def probe(
 ) -> None:
     """Power density of every emitter, and the total exposure ratio, at one point (and over a body standing there)."""
     from exposure.assessment import probe as probe_point
-    from exposure.loader import load_site
+    from exposure.site import load_site
 
     point = parse_point(at)
     site = load_site(site_file, standard=standard, limits_file=limits_file)
@@ -59,7 +59,7 @@ def probe(
     from rich.markup import escape as esc
 
     out = console()
-    out.print(f"Point ({point[0]:g}, {point[1]:g}, {point[2]:g}) m on {esc(site.record.site.name)}, standard {site.table.key}")
+    out.print(f"Point ({point[0]:g}, {point[1]:g}, {point[2]:g}) m on {esc(site.name)}, standard {site.table.key}")
     table = make_table()
     for col in ("emitter", "MHz", "model", "S W/m²", "% GP limit", "% occ. limit"):
         table.add_column(col, justify="left" if col in ("emitter", "model") else "right")

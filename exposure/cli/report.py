@@ -36,7 +36,7 @@ def report(
     quiet: QuietOption = False,
 ) -> None:
     """Write the PDF compliance worksheet of a site and, beside it, the same JSON as `assess --json`."""
-    from exposure.io import atomic_write_bytes, json_bytes, write_pair
+    from exposure.atomic import atomic_write_bytes, json_bytes, write_pair
     from exposure.report import render_pdf
 
     if output is not None and not output.is_dir():
@@ -52,9 +52,10 @@ def report(
         paths[:] = [pdf, beside]
         check_output_paths(paths, inputs)
 
-    site, result = run_assessment(site_file, standard, limits_file, grid_m, measure_above, quiet, before=check_outputs)
+    site, result = run_assessment(site_file, standard, limits_file, grid_m, measure_above, quiet, before=check_outputs,
+                                  sections=True)
     pdf_path, json_path = paths
-    pdf = render_pdf(result, site)  # rendered in full before anything is written
+    pdf = render_pdf(result)  # rendered in full before anything is written
     write_pair(pdf_path, lambda path: atomic_write_bytes(path, pdf), json_path, json_bytes(result.to_json()))
     typer.echo(f"wrote {pdf_path}")
     typer.echo(f"wrote {json_path}")
@@ -82,7 +83,7 @@ def input_files(site) -> list[Path]:
     table_path = getattr(site.table, "path", None)
     if table_path:
         files.append(Path(table_path))
-    for emitter in site.record.emitters:
+    for emitter in site.emitters:
         if emitter.pattern_file:
             files.append(Path(site.path).parent / emitter.pattern_file)
     return files

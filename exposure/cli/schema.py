@@ -8,7 +8,7 @@ import typer
 def schema() -> None:
     """Print the JSON Schema (draft 2020-12) of the site record."""
     from exposure.cli.common import print_json
-    from exposure.records import json_schema
+    from exposure.site.record import json_schema
 
     print_json(json_schema())
 

@@ -32,7 +32,7 @@ def validate(
     """Check site records; print each emitter with its EIRP and ERP, and any warnings."""
     from exposure.cli.app import fail
     from exposure.errors import InputError
-    from exposure.loader import load_site
+    from exposure.site import load_site
 
     failed: list[str] = []
     summaries = []
@@ -53,7 +53,6 @@ def validate(
 
 
 def _summary(site, patterns: bool = False) -> dict:
-    record = site.record
     warnings = list(site.warnings)
     efficiency: dict[str, float] = {}
     if patterns:
@@ -67,9 +66,9 @@ def _summary(site, patterns: bool = False) -> dict:
     return {
         "file": str(site.path),
         "sha256": site.sha256,
-        "site": {"id": record.site.id, "name": record.site.name},
+        "site": {"id": site.id, "name": site.name},
         "standard": site.table.key,
-        "surfaces": [{"name": s.name, "access": s.access} for s in record.surfaces],
+        "surfaces": [{"name": s.name, "access": s.access} for s in site.surfaces],
         "emitters": [
             {
                 "id": e.id,
@@ -77,14 +76,14 @@ def _summary(site, patterns: bool = False) -> dict:
                 "kind": e.kind,
                 "frequency_mhz": e.frequency_mhz,
                 "net_power_w": e.net_power_w,
-                "gain_dbi": e.peak_gain_dbi,
-                "eirp_w": e.eirp_full_w,
-                "erp_w": e.erp_full_w,
+                "gain_dbi": e.gain_dbi,
+                "eirp_w": e.eirp_w,
+                "erp_w": e.erp_w,
                 "duty_factor": e.duty_factor,
-                "time_averaged_eirp_w": e.eirp_avg_w,
+                "time_averaged_eirp_w": e.avg_eirp_w,
                 **({"pattern_efficiency": efficiency[e.id]} if patterns else {}),
             }
-            for e in record.emitters
+            for e in site.emitters
         ],
         "warnings": warnings,
     }
@@ -93,12 +92,11 @@ def _summary(site, patterns: bool = False) -> dict:
 def _render(site, summary: dict) -> None:
     from rich.markup import escape as esc
 
-    record = site.record
     out = console()
     out.print(
-        f"[bold]{esc(str(site.path))}[/bold]: valid. Site {record.site.id!r} ({esc(record.site.name)}), "
-        f"standard {site.table.key}; {len(record.surfaces)} surfaces, "
-        f"{len(record.emitters)} emitters, {len(record.work_positions)} work positions.",
+        f"[bold]{esc(str(site.path))}[/bold]: valid. Site {site.id!r} ({esc(site.name)}), "
+        f"standard {site.table.key}; {len(site.surfaces)} surfaces, "
+        f"{len(site.emitters)} emitters, {len(site.work_positions)} work positions.",
         markup=True,
     )
     table = make_table()
@@ -108,15 +106,15 @@ def _render(site, summary: dict) -> None:
         columns.append("∫G/4π")
     for col in columns:
         table.add_column(col, justify="left" if col in ("id", "kind") else "right")
-    operators = list(dict.fromkeys(e.operator for e in record.emitters))
+    operators = list(dict.fromkeys(e.operator for e in site.emitters))
     for operator in operators:
         table.add_row(f"[bold]{esc(operator)}[/bold]", *[""] * (len(columns) - 1))
-        for e, s in zip(record.emitters, summary["emitters"]):
+        for e, s in zip(site.emitters, summary["emitters"]):
             if e.operator != operator:
                 continue
             row = [
-                f"  {esc(e.id)}", e.kind, fmt(e.frequency_mhz, 5), fmt(e.net_power_w), f"{e.peak_gain_dbi:.1f}",
-                fmt(e.eirp_full_w), fmt(e.erp_full_w), f"{e.duty_factor:g}",
+                f"  {esc(e.id)}", e.kind, fmt(e.frequency_mhz, 5), fmt(e.net_power_w), f"{e.gain_dbi:.1f}",
+                fmt(e.eirp_w), fmt(e.erp_w), f"{e.duty_factor:g}",
             ]
             if with_patterns:
                 row.append(f"{s['pattern_efficiency']:.2f}")

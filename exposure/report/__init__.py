@@ -1,51 +1,49 @@
 """The PDF compliance worksheet of an assessed site.
 
-``render_pdf(assessment, site)`` returns the PDF as bytes; ``write_report`` writes it
-atomically (rendered completely in memory first, then a temporary file renamed into
-place), so a failure never leaves a partial PDF. reportlab and matplotlib are imported
-only when a report is rendered.
+``render_pdf(assessment)`` returns the PDF as bytes; ``write_report`` writes it atomically
+(rendered completely in memory first, then a temporary file renamed into place), so a
+failure never leaves a partial PDF. The worksheet draws only what the
+:class:`~exposure.assessment.results.Assessment` holds (its sections included: assess with
+``sections=True``); it never calls the models. reportlab and matplotlib are imported only
+when a report is rendered.
 """
 
 from __future__ import annotations
 
 import datetime as _dt
-from collections.abc import Callable
 from pathlib import Path
+from typing import TYPE_CHECKING
+
+if TYPE_CHECKING:
+    from exposure.assessment.results import Assessment
 
 __all__ = ["render_pdf", "write_report"]
 
 
-def render_pdf(assessment, site, *, date: _dt.date | None = None, section: Callable | None = None) -> bytes:
+def render_pdf(assessment: Assessment, *, date: _dt.date | None = None) -> bytes:
     """The worksheet as PDF bytes (see :func:`exposure.report.pdf.render_pdf`)."""
     from exposure.report import pdf
 
-    return pdf.render_pdf(assessment, site, date=date, section=section)
+    return pdf.render_pdf(assessment, date=date)
 
 
-def write_report(
-    assessment, site, path: str | Path, *, date: _dt.date | None = None, section: Callable | None = None
-) -> Path:
+def write_report(assessment: Assessment, path: str | Path, *, date: _dt.date | None = None) -> Path:
     """Render the worksheet of *assessment* and write it to *path* atomically.
 
     Parameters
     ----------
-    assessment : exposure.results.Assessment
-        The result of :func:`exposure.assessment.assess` on *site*.
-    site : exposure.loader.LoadedSite
-        The site it was computed from.
+    assessment : Assessment
+        The result of :func:`exposure.assessment.assess` (with ``sections=True``).
     path : path-like
         The PDF to write; its folder is created if missing.
     date : datetime.date, optional
         Date printed in the title block (today by default).
-    section : callable, optional
-        Section evaluator (default :func:`exposure.assessment.section`).
 
     Returns
     -------
     Path
         *path*. Nothing is written if rendering fails.
     """
-    from exposure.io import atomic_write_bytes
+    from exposure.atomic import atomic_write_bytes
 
-    data = render_pdf(assessment, site, date=date, section=section)
-    return atomic_write_bytes(path, data)
+    return atomic_write_bytes(path, render_pdf(assessment, date=date))

@@ -1,4 +1,5 @@
-"""Print-quality figures for the worksheet: the plan-view map and the elevation sections.
+"""Print-quality figures for the worksheet: the plan-view map (the sections are
+:mod:`exposure.report.section_figure`, the label placement :mod:`exposure.report.labels`).
 
 matplotlib is used through its object API on the Agg canvas (no pyplot, no global
 backend switch), and imported only inside the functions, so that importing
@@ -16,25 +17,48 @@ from __future__ import annotations
 
 import io
 import math
-import textwrap
 
 import numpy as np
 
+from exposure.report.labels import Labels, emitter_labels, surface_labels, work_labels
+
 DPI = 200
+
+
 PERCENT_RANGE = (1.0, 1.0e4)  # usual colour scale of the maps [% of the general-public limit]
+
+
 LOWEST_PERCENT = 1e-3  # the scale reaches down to here on sites with little exposure
+
+
 CMAP = "viridis"
+
+
 GP_LINE = {"colors": "black", "linewidths": 1.3, "linestyles": "solid"}
+
+
 OCC_COLOUR = "#b0102a"
+
+
 OCC_LINE = {"colors": OCC_COLOUR, "linewidths": 1.6, "linestyles": "solid"}
+
+
 TEN_OCC_LINE = {"colors": OCC_COLOUR, "linewidths": 1.6, "linestyles": [(0, (4, 1.5, 1, 1.5))]}  # ten times occupational
+
+
 CATEGORY_LINES = (  # (key, tier, level, style, white casing): the boundaries of categories 2, 3 and 4
     ("general_public", "general_public", 1.0, GP_LINE, False),
     ("occupational", "occupational", 1.0, OCC_LINE, True),
     ("ten_occupational", "occupational", 10.0, TEN_OCC_LINE, True),
 )
+
+
 HEAD_LINE = "#ff9e4a"  # the top of the evaluated body height in the sections
+
+
 CASING = {"colors": "white", "linewidths": 3.0, "linestyles": "solid"}
+
+
 ACCESS_STYLE = {  # outline and shading of surfaces by access class
     "public": {"edgecolor": "black", "linewidth": 1.8, "linestyle": "solid", "hatch": "\\\\",
                "hatch_colour": (1, 1, 1, 0.55), "fill": None},
@@ -43,17 +67,14 @@ ACCESS_STYLE = {  # outline and shading of surfaces by access class
     "none": {"edgecolor": "#505050", "linewidth": 0.8, "linestyle": (0, (1, 1.5)), "hatch": "xx",
              "hatch_colour": (0.3, 0.3, 0.3, 0.7), "fill": "#bdbdbd"},
 }
+
+
 ACCESS_LABEL = {"public": "public access", "occupational": "occupational (controlled) access", "none": "no access"}
 
 
-def _plain(value: str) -> str:
-    """Text for matplotlib as typed (:func:`exposure.report.fonts.label`)."""
-    from exposure.report.fonts import label
-
-    return label(value)
 
 
-def _new_figure(width_in: float, height_in: float):
+def new_figure(width_in: float, height_in: float):
     from matplotlib.backends.backend_agg import FigureCanvasAgg
     from matplotlib.figure import Figure
 
@@ -62,7 +83,7 @@ def _new_figure(width_in: float, height_in: float):
     return fig
 
 
-def _png(fig) -> tuple[bytes, float, float]:
+def png(fig) -> tuple[bytes, float, float]:
     """PNG bytes cropped to the drawing, and its width and height [in]."""
     buffer = io.BytesIO()
     fig.savefig(buffer, format="png", dpi=DPI, metadata={"Software": None}, bbox_inches="tight", pad_inches=0.03)
@@ -81,13 +102,13 @@ def colour_range(assessment) -> tuple[float, float]:
     return low, PERCENT_RANGE[1]
 
 
-def _norm(pct_range):
+def norm(pct_range):
     from matplotlib.colors import LogNorm
 
     return LogNorm(vmin=pct_range[0], vmax=pct_range[1], clip=True)
 
 
-def _percent(ratio: np.ndarray, pct_range) -> np.ma.MaskedArray:
+def percent(ratio: np.ndarray, pct_range) -> np.ma.MaskedArray:
     """Ratios as % of the limit, clipped into the colour range, NaN masked."""
     pct = np.clip(100.0 * np.asarray(ratio, dtype=float), *pct_range)
     return np.ma.masked_invalid(pct)
@@ -108,7 +129,7 @@ def _crosses(values: np.ndarray, level: float) -> bool:
     return finite.size > 0 and finite.min() < level < finite.max()
 
 
-def _contour(ax, x, y, values, level: float, style: dict, zorder: float, casing: bool = False) -> bool:
+def contour(ax, x, y, values, level: float, style: dict, zorder: float, casing: bool = False) -> bool:
     """Draw the contour at *level*; False where there is none to draw."""
     values = np.asarray(values, dtype=float)
     if values.ndim != 2 or min(values.shape) < 2 or not _crosses(values, level):
@@ -120,7 +141,7 @@ def _contour(ax, x, y, values, level: float, style: dict, zorder: float, casing:
     return True
 
 
-def _colourbar(fig, mappable, ax, orientation: str = "vertical", label: str | None = None):
+def colourbar(fig, mappable, ax, orientation: str = "vertical", label: str | None = None):
     bar = fig.colorbar(mappable, ax=ax, orientation=orientation, extend="both", fraction=0.035, pad=0.02)
     low, high = mappable.norm.vmin, mappable.norm.vmax
     ticks = [10.0**k for k in range(round(math.log10(low)), round(math.log10(high)) + 1)]
@@ -160,70 +181,6 @@ def _north_arrow(ax, x: float, y0: float, y1: float) -> None:
     ax.text(x, y0, "N", ha="center", va="top", fontsize=8.5, fontweight="bold", zorder=60)
 
 
-def _clearance(points: np.ndarray, poly: np.ndarray) -> np.ndarray:
-    """Distance from each point to the nearest edge of a polygon [m]."""
-    a, b = poly, np.roll(poly, -1, axis=0)
-    ab = b - a
-    length2 = np.maximum((ab**2).sum(axis=1), 1e-12)
-    rel = points[:, None, :] - a[None, :, :]
-    t = np.clip((rel * ab[None]).sum(axis=2) / length2[None], 0, 1)
-    nearest = a[None] + t[..., None] * ab[None]
-    return np.sqrt(((points[:, None, :] - nearest) ** 2).sum(axis=2)).min(axis=1)
-
-
-def _inside_points(outline) -> list[tuple[float, float]]:
-    """Candidate label points inside a polygon, farthest from its edges first."""
-    from matplotlib.path import Path
-
-    poly = np.asarray(outline, dtype=float)
-    xs = np.linspace(poly[:, 0].min(), poly[:, 0].max(), 41)
-    ys = np.linspace(poly[:, 1].min(), poly[:, 1].max(), 41)
-    gx, gy = np.meshgrid(xs, ys)
-    candidates = np.column_stack([gx.ravel(), gy.ravel()])
-    inside = candidates[Path(poly).contains_points(candidates)]
-    if inside.size == 0:
-        return [(float(poly[:, 0].mean()), float(poly[:, 1].mean()))]
-    order = np.argsort(-_clearance(inside, poly), kind="stable")
-    return [(float(inside[i, 0]), float(inside[i, 1])) for i in order]
-
-
-class _Labels:
-    """Greedy placement of text boxes on the map without overlaps (sizes estimated).
-
-    Boxes are (x0, y0, x1, y1) in data units; a text's size comes from its characters at
-    DejaVu Sans's mean advance (about 0.62 em), converted with the map's metres per point.
-    """
-
-    def __init__(self, metres_per_point: float):
-        self.m_per_pt = metres_per_point
-        self.boxes: list[tuple[float, float, float, float]] = []
-
-    def size(self, label: str, fontsize: float, pad_pt: float = 2.5) -> tuple[float, float]:
-        lines = label.split("\n")
-        width = (max(len(line) for line in lines) * 0.62 * fontsize + 2 * pad_pt) * self.m_per_pt
-        height = (len(lines) * 1.2 * fontsize + 2 * pad_pt) * self.m_per_pt
-        return width, height
-
-    def free(self, box) -> bool:
-        return not any(box[0] < b[2] and b[0] < box[2] and box[1] < b[3] and b[1] < box[3] for b in self.boxes)
-
-    def take(self, box) -> None:
-        self.boxes.append(box)
-
-    def take_segment(self, start, end, half_width: float, pieces: int = 6) -> None:
-        """Keep later labels off a line (an arrow), as a chain of small boxes."""
-        for t in np.linspace(0.0, 1.0, pieces):
-            x = start[0] + t * (end[0] - start[0])
-            y = start[1] + t * (end[1] - start[1])
-            self.boxes.append((x - half_width, y - half_width, x + half_width, y + half_width))
-
-
-def _box_at(x: float, y: float, width: float, height: float, ha: str, va: str):
-    x0 = {"left": x, "center": x - width / 2, "right": x - width}[ha]
-    y0 = {"bottom": y, "center": y - height / 2, "top": y - height}[va]
-    return (x0, y0, x0 + width, y0 + height)
-
-
 def _base_extent(assessment, region=None) -> tuple[tuple[float, float], tuple[float, float]]:
     if region is not None:
         return region
@@ -249,127 +206,6 @@ def _map_size(xlim, ylim, width_in: float, max_height_in: float) -> tuple[float,
     return axes_w + 1.45, axes_w * aspect + 1.6, axes_w
 
 
-def _in_region(x: float, y: float, region) -> bool:
-    return region is None or (region[0][0] <= x <= region[0][1] and region[1][0] <= y <= region[1][1])
-
-
-def _emitter_labels(assessment, labels: _Labels, base: float, region=None) -> list[tuple]:
-    """Per emitter: (emitter, arrow tip or None, label box, ha, va, text position)."""
-    placed = []
-    for e in assessment.emitters:
-        x, y = e.position_m[0], e.position_m[1]
-        if not _in_region(x, y, region):
-            continue
-        width, height = labels.size(e.id, 6.5)
-        if e.azimuth_deg is None:
-            options = [((x + dx, y + dy), ha, va, None) for dx, dy, ha, va in (
-                (0.3 * base, -0.3 * base, "left", "top"), (-0.3 * base, -0.3 * base, "right", "top"),
-                (0.3 * base, 0.3 * base, "left", "bottom"), (-0.3 * base, 0.3 * base, "right", "bottom"))]
-        else:
-            az = math.radians(e.azimuth_deg)
-            sx, sy = math.sin(az), math.cos(az)
-            ha = "left" if sx > 0.35 else ("right" if sx < -0.35 else "center")
-            va = "bottom" if sy > 0.35 else ("top" if sy < -0.35 else "center")
-            options = []
-            for factor in (1.0, 1.45, 1.9, 2.35, 2.8, 3.3):
-                end = (x + factor * base * sx, y + factor * base * sy)
-                gap = 0.12 * base
-                options.append(((end[0] + gap * sx, end[1] + gap * sy), ha, va, end))
-        for at, ha, va, tip in options:  # the chosen option's own arrow (None for an omni)
-            box = _box_at(*at, width, height, ha, va)
-            if labels.free(box):
-                break
-        labels.take(box)
-        labels.take_segment((x, y), tip or (x, y), 0.06 * base)  # later labels keep off the arrow
-        placed.append((e, tip, box, ha, va, at))
-    return placed
-
-
-def _work_labels(assessment, labels: _Labels, base: float, region=None) -> list[tuple]:
-    placed = []
-    for n, w in enumerate(assessment.work_positions, start=1):
-        x, y = w.point_m[0], w.point_m[1]
-        if not _in_region(x, y, region):
-            continue
-        width, height = labels.size(f"W{n}", 6.5)
-        d = 0.18 * base
-        for dx, dy, ha, va in ((d, d, "left", "bottom"), (-d, d, "right", "bottom"), (d, -d, "left", "top"),
-                               (-d, -d, "right", "top")):
-            box = _box_at(x + dx, y + dy, width, height, ha, va)
-            if labels.free(box):
-                break
-        labels.take(box)
-        placed.append((f"W{n}", w, box, ha, va, (x + dx, y + dy)))
-    return placed
-
-
-def _clip_to_box(outline, region) -> list[tuple[float, float]]:
-    """The part of a polygon inside a rectangle (Sutherland–Hodgman); [] if none."""
-    points = [tuple(map(float, p)) for p in outline]
-    (xa, xb), (ya, yb) = region
-    edges = (
-        (lambda p: p[0] >= xa, lambda p, q: (xa, p[1] + (q[1] - p[1]) * (xa - p[0]) / (q[0] - p[0]))),
-        (lambda p: p[0] <= xb, lambda p, q: (xb, p[1] + (q[1] - p[1]) * (xb - p[0]) / (q[0] - p[0]))),
-        (lambda p: p[1] >= ya, lambda p, q: (p[0] + (q[0] - p[0]) * (ya - p[1]) / (q[1] - p[1]), ya)),
-        (lambda p: p[1] <= yb, lambda p, q: (p[0] + (q[0] - p[0]) * (yb - p[1]) / (q[1] - p[1]), yb)),
-    )
-    for inside, cut in edges:
-        result = []
-        for i, q in enumerate(points):
-            p = points[i - 1]
-            if inside(q):
-                if not inside(p):
-                    result.append(cut(p, q))
-                result.append(q)
-            elif inside(p):
-                result.append(cut(p, q))
-        points = result
-        if not points:
-            return []
-    return points if abs(_area(points)) > 1e-9 else []
-
-
-def _surface_labels(assessment, labels: _Labels, region=None) -> list[tuple]:
-    """Per surface: label text, its box, and an anchor on the surface for a leader (or None)."""
-    placed = []
-    for s in sorted(assessment.surfaces, key=lambda s: -abs(_area(s.outline))):
-        outline = s.outline if region is None else _clip_to_box(s.outline, region)
-        if not outline:
-            continue
-        access = {"public": "public", "occupational": "occupational", "none": "no access"}.get(s.access, s.access)
-        elevation = f", {s.elevation_m:+g} m" if s.elevation_m else ""
-        label = "\n".join(textwrap.wrap(_plain(s.name), 30) + [f"({access}{elevation})"])
-        width, height = labels.size(label, 6.5)
-        from matplotlib.path import Path
-
-        poly = np.asarray(outline, dtype=float)
-        path = Path(poly)
-        candidates = _inside_points(outline)
-        inside = False
-        for cx, cy in candidates:
-            box = _box_at(cx, cy, width, height, "center", "center")
-            corners = np.array([[box[0], box[1]], [box[2], box[1]], [box[2], box[3]], [box[0], box[3]]])
-            if path.contains_points(corners).all() and labels.free(box):
-                inside = True
-                break
-        anchor = None
-        if not inside:  # too small for its name: put the label beside it, with a leader
-            cx, cy = candidates[0]
-            anchor = (cx, cy)
-            gap = 1.2 * height
-            for at in ((cx, poly[:, 1].max() + gap), (cx, poly[:, 1].min() - gap),
-                       (poly[:, 0].max() + gap + width / 2, cy), (poly[:, 0].min() - gap - width / 2, cy)):
-                box = _box_at(*at, width, height, "center", "center")
-                if labels.free(box):
-                    break
-        labels.take(box)
-        placed.append((label, box, anchor))
-    return placed
-
-
-def _area(outline) -> float:
-    poly = np.asarray(outline, dtype=float)
-    return 0.5 * float(np.sum(poly[:, 0] * np.roll(poly[:, 1], -1) - np.roll(poly[:, 0], -1) * poly[:, 1]))
 
 
 def plan_map(
@@ -379,7 +215,7 @@ def plan_map(
 
     Parameters
     ----------
-    assessment : exposure.results.Assessment
+    assessment : exposure.assessment.results.Assessment
         The result; surfaces without a grid are drawn as outlines only.
     width_in, max_height_in : float
         Largest figure size [in].
@@ -429,10 +265,10 @@ def _plan_map(assessment, width_in: float, max_height_in: float, region, legend:
     base = 0.065 * span  # boresight arrow length [m]
     _, _, axes_w = _map_size((x0 - 0.1 * span, x1 + 0.1 * span), (y0 - 0.2 * span, y1 + 0.1 * span), width_in,
                              max_height_in)
-    labels = _Labels(1.15 * (x1 - x0 + 0.2 * span) / (axes_w * 72.0))
-    emitter_labels = _emitter_labels(assessment, labels, base, region)
-    work_labels = _work_labels(assessment, labels, base, region)
-    surface_labels = _surface_labels(assessment, labels, region)
+    labels = Labels(1.15 * (x1 - x0 + 0.2 * span) / (axes_w * 72.0))
+    placed_emitters = emitter_labels(assessment, labels, base, region)
+    placed_work = work_labels(assessment, labels, base, region)
+    placed_surfaces = surface_labels(assessment, labels, region)
     boxes = np.array(labels.boxes) if labels.boxes else np.zeros((0, 4))
     pad = 0.03 * span
     xlim = (min(x0, boxes[:, 0].min(initial=x0)) - pad, max(x1, boxes[:, 2].max(initial=x1)) + pad)
@@ -442,11 +278,11 @@ def _plan_map(assessment, width_in: float, max_height_in: float, region, legend:
     ylim = (bottom - strip, top)
     width_in, height_in, _ = _map_size(xlim, ylim, width_in, max_height_in)
 
-    fig = _new_figure(width_in, height_in)
+    fig = new_figure(width_in, height_in)
     fig.set_layout_engine("constrained")
     ax = fig.add_subplot()
     pct_range = colour_range(assessment)
-    norm = _norm(pct_range)
+    colour_norm = norm(pct_range)
     mesh = None
     drawn: dict[str, list[str]] = {key: [] for key, *_ in CATEGORY_LINES}
     order = sorted(range(len(assessment.surfaces)), key=lambda i: (assessment.surfaces[i].elevation_m, i))
@@ -459,7 +295,7 @@ def _plan_map(assessment, width_in: float, max_height_in: float, region, legend:
             width, depth = np.ptp(poly[:, 0]), np.ptp(poly[:, 1])
             mesh = ax.pcolormesh(_edges(s.grid.x_m, min(width, s.grid.cell_m) or s.grid.cell_m),
                                  _edges(s.grid.y_m, min(depth, s.grid.cell_m) or s.grid.cell_m),
-                                 _percent(s.grid.ratio["general_public"], pct_range), cmap=CMAP, norm=norm,
+                                 percent(s.grid.ratio["general_public"], pct_range), cmap=CMAP, norm=colour_norm,
                                  shading="flat", zorder=z, rasterized=True)
         if style["fill"]:
             ax.add_patch(_surface_patch(s, facecolor=style["fill"], edgecolor="none", alpha=0.6, zorder=z + 0.5))
@@ -470,14 +306,14 @@ def _plan_map(assessment, width_in: float, max_height_in: float, region, legend:
             _hatch_cells(ax, s.grid, z + 0.8)
         if s.grid is not None:
             for key, tier, level, line, casing in CATEGORY_LINES:
-                if _contour(ax, s.grid.x_m, s.grid.y_m, s.grid.ratio[tier], level, line, z + 1, casing=casing):
+                if contour(ax, s.grid.x_m, s.grid.y_m, s.grid.ratio[tier], level, line, z + 1, casing=casing):
                     drawn[key].append(s.name)
         ax.add_patch(_surface_patch(s, fill=False, edgecolor=style["edgecolor"],
                                     linewidth=style["linewidth"], linestyle=style["linestyle"], zorder=z + 3))
 
     box_style = {"boxstyle": "round,pad=0.25", "facecolor": "white", "edgecolor": "#808080", "linewidth": 0.4,
                  "alpha": 0.88}
-    for label, box, anchor in surface_labels:
+    for label, box, anchor in placed_surfaces:
         centre = ((box[0] + box[2]) / 2, (box[1] + box[3]) / 2)
         if anchor is None:
             ax.text(*centre, label, ha="center", va="center", fontsize=6.5, zorder=90, linespacing=1.1, bbox=box_style)
@@ -486,7 +322,7 @@ def _plan_map(assessment, width_in: float, max_height_in: float, region, legend:
                         linespacing=1.1, bbox=box_style,
                         arrowprops={"arrowstyle": "-", "color": "#404040", "linewidth": 0.6, "shrinkA": 0,
                                     "shrinkB": 0})
-    for e, tip, _box, ha, va, at in emitter_labels:
+    for e, tip, _box, ha, va, at in placed_emitters:
         x, y = e.position_m[0], e.position_m[1]
         if tip is not None:
             for colour, width, head in (("white", 2.6, "0.28,head_length=0.55"), ("black", 1.0, "0.2,head_length=0.45")):
@@ -498,7 +334,7 @@ def _plan_map(assessment, width_in: float, max_height_in: float, region, legend:
                 markeredgewidth=0.9 if tip is not None else 1.6, zorder=97)
         ax.text(*at, e.id, ha=ha, va=va, fontsize=6.5, fontweight="bold", zorder=98,
                 bbox={"boxstyle": "round,pad=0.15", "facecolor": "white", "edgecolor": "none", "alpha": 0.88})
-    for name, w, _box, ha, va, at in work_labels:
+    for name, w, _box, ha, va, at in placed_work:
         ax.plot([w.point_m[0]], [w.point_m[1]], marker="s", markersize=5, color="#ffe680", markeredgecolor="black",
                 markeredgewidth=1.0, zorder=97)
         ax.text(*at, name, fontsize=6.5, zorder=98, ha=ha, va=va,
@@ -518,7 +354,7 @@ def _plan_map(assessment, width_in: float, max_height_in: float, region, legend:
     ax.tick_params(labelsize=6.5)
     ax.grid(True, color="#c8c8c8", linewidth=0.3, zorder=0)
     if mesh is not None:
-        _colourbar(fig, mesh, ax)
+        colourbar(fig, mesh, ax)
     handles = [
         Line2D([], [], color="black", linewidth=1.3, label="100 % of the general-public limit"),
         Line2D([], [], color=OCC_COLOUR, linewidth=1.6, label="100 % of the occupational limit"),
@@ -543,10 +379,12 @@ def _plan_map(assessment, width_in: float, max_height_in: float, region, legend:
     if legend:
         fig.legend(handles=handles, loc="outside lower center", ncol=3, fontsize=6.5, frameon=False,
                    handlelength=2.4)
-    return *_png(fig), drawn
+    return *png(fig), drawn
 
 
 ELEMENT_ZONE_HATCH = "////"
+
+
 ELEMENT_ZONE_COLOUR = "#303030"
 
 
@@ -589,175 +427,3 @@ def _surface_patch(surface, **style):
     from matplotlib.patches import PathPatch
 
     return PathPatch(_surface_path(surface), **style)
-
-
-def surfaces_along(assessment, origin: tuple[float, float], azimuth_deg: float, s_m: np.ndarray):
-    """Where the section line crosses each surface (never its holes): ``[(surface, mask over s_m)]``."""
-    from exposure.geometry import contains, surface_polygon
-
-    az = math.radians(azimuth_deg)
-    x, y = origin[0] + s_m * math.sin(az), origin[1] + s_m * math.cos(az)
-    out = []
-    for s in assessment.surfaces:
-        mask = contains(surface_polygon(s.outline, s.holes), x, y)
-        if mask.any():
-            out.append((s, mask))
-    return out
-
-
-def _runs(mask: np.ndarray) -> list[tuple[int, int]]:
-    """Index ranges [start, stop] of consecutive True values."""
-    runs, start = [], None
-    for i, value in enumerate(mask):
-        if value and start is None:
-            start = i
-        if not value and start is not None:
-            runs.append((start, i - 1))
-            start = None
-    if start is not None:
-        runs.append((start, len(mask) - 1))
-    return runs
-
-
-def worst_standing_spot(s_m, z_m, ratio_gp, crossings, body_height_m: float):
-    """The place on the section's accessible surfaces with the highest exposure over a standing body.
-
-    Returns ``(s, elevation, ratio)`` or None where the line crosses no surface.
-    """
-    best = None
-    for surface, mask in crossings:
-        if surface.access == "none":
-            continue  # nobody stands there
-        rows = (z_m >= surface.elevation_m - 1e-9) & (z_m <= surface.elevation_m + body_height_m + 1e-9)
-        if not rows.any():
-            continue
-        column_max = np.nanmax(np.where(rows[:, None], ratio_gp, -np.inf), axis=0)
-        column_max = np.where(mask, column_max, -np.inf)
-        j = int(np.argmax(column_max))
-        if np.isfinite(column_max[j]) and (best is None or column_max[j] > best[2]):
-            best = (float(s_m[j]), surface.elevation_m, float(column_max[j]))
-    return best
-
-
-def _person(ax, s: float, base: float, height: float, exaggeration: float) -> None:
-    """A simple standing figure *height* tall, drawn undistorted by the vertical exaggeration."""
-    from matplotlib.patches import Ellipse
-
-    h = height
-    w = 0.25 * h * exaggeration  # horizontal sizes grow with the vertical exaggeration
-    kw = {"color": "black", "linewidth": 1.1, "zorder": 80, "solid_capstyle": "round"}
-    ax.plot([s - w * 0.5, s, s + w * 0.5], [base, base + 0.47 * h, base], **kw)  # legs
-    ax.plot([s, s], [base + 0.47 * h, base + 0.86 * h], **kw)  # trunk
-    ax.plot([s - w * 0.55, s, s + w * 0.55], [base + 0.50 * h, base + 0.80 * h, base + 0.50 * h], **kw)  # arms
-    ax.add_patch(Ellipse((s, base + 0.93 * h), 0.55 * w, 0.14 * h, facecolor="white", edgecolor="black",
-                         linewidth=1.1, zorder=81))
-
-
-def section_figure(
-    s_m: np.ndarray,
-    z_m: np.ndarray,
-    ratio: dict[str, np.ndarray],
-    *,
-    emitter,
-    assessment,
-    body_height_m: float,
-    width_in: float = 7.2,
-    max_height_in: float = 4.1,
-) -> tuple[bytes, float, float, dict]:
-    """An elevation section along one emitter's boresight with the 100 % contours.
-
-    Parameters
-    ----------
-    s_m, z_m : ndarray
-        Distance along the azimuth from the emitter (negative behind) and height in the
-        site frame [m].
-    ratio : dict
-        Tier -> total ratio, shape (len(z_m), len(s_m)).
-    emitter : exposure.results.EmitterResult
-    assessment : exposure.results.Assessment
-    body_height_m : float
-        Height of the standing figure and of the evaluation band above each surface [m].
-
-    Returns
-    -------
-    tuple of (bytes, float, float, dict)
-        PNG, width and height [in], and facts for the caption (``exaggeration``,
-        ``worst`` = (s, elevation, ratio) or None).
-    """
-    import matplotlib
-
-    from exposure.report.fonts import matplotlib_rc
-
-    with matplotlib.rc_context(matplotlib_rc()):
-        return _section_figure(s_m, z_m, ratio, emitter=emitter, assessment=assessment, body_height_m=body_height_m,
-                               width_in=width_in, max_height_in=max_height_in)
-
-
-def _section_figure(s_m, z_m, ratio, *, emitter, assessment, body_height_m, width_in, max_height_in):
-    from matplotlib.lines import Line2D
-
-    s_m, z_m = np.asarray(s_m, dtype=float), np.asarray(z_m, dtype=float)
-    s_span, z_span = float(s_m.max() - s_m.min()), float(z_m.max() - z_m.min())
-    axes_w = width_in - 1.55
-    exaggeration = 1.0
-    for k in (1.0, 1.5, 2.0, 2.5, 3.0, 4.0, 5.0, 8.0, 10.0):
-        exaggeration = k
-        if axes_w * z_span * k / s_span >= 1.7:
-            break
-    axes_h = axes_w * z_span * exaggeration / s_span
-    if axes_h > max_height_in - 1.0:
-        axes_h = max_height_in - 1.0
-        axes_w = min(axes_w, axes_h * s_span / (z_span * exaggeration))
-    height_in = axes_h + 1.05
-    fig = _new_figure(width_in, height_in)
-    fig.set_layout_engine("constrained")
-    ax = fig.add_subplot()
-    pct_range = colour_range(assessment)
-    mesh = ax.pcolormesh(s_m, z_m, _percent(ratio["general_public"], pct_range), cmap=CMAP, norm=_norm(pct_range),
-                         shading="nearest",
-                         rasterized=True, zorder=1)
-    drawn = {
-        "general_public": _contour(ax, s_m, z_m, ratio["general_public"], 1.0, GP_LINE, 5),
-        "occupational": _contour(ax, s_m, z_m, ratio["occupational"], 1.0, OCC_LINE, 6, casing=True),
-    }
-
-    azimuth = emitter.azimuth_deg if emitter.azimuth_deg is not None else 0.0
-    crossings = surfaces_along(assessment, emitter.position_m[:2], azimuth, s_m)
-    ds = float(np.median(np.diff(s_m))) if s_m.size > 1 else 0.0
-    for surface, mask in crossings:
-        for i, j in _runs(mask):
-            a, b = s_m[i] - ds / 2, s_m[j] + ds / 2
-            ax.fill_between([a, b], [surface.elevation_m] * 2, [z_m.min()] * 2, color="#9a9a9a", alpha=0.9,
-                            zorder=7, linewidth=0)
-            ax.plot([a, b], [surface.elevation_m] * 2, color="black", linewidth=1.4, zorder=8)
-            ax.plot([a, b], [surface.elevation_m + body_height_m] * 2, color=HEAD_LINE, linewidth=1.0,
-                    linestyle=(0, (4, 2)), zorder=8)
-    worst = worst_standing_spot(s_m, z_m, ratio["general_public"], crossings, body_height_m)
-    if worst is not None:
-        _person(ax, worst[0], worst[1], body_height_m, exaggeration)
-        ax.annotate(f"{body_height_m:g} m", (worst[0], worst[1] + body_height_m), xytext=(5, 0),
-                    textcoords="offset points", ha="left", va="center", fontsize=6, zorder=82,
-                    bbox={"boxstyle": "round,pad=0.1", "facecolor": "white", "edgecolor": "none", "alpha": 0.8})
-    ax.plot([0], [emitter.position_m[2]], marker="^" if emitter.azimuth_deg is not None else "o", color="black",
-            markeredgecolor="white", markersize=6, zorder=90)
-    person_near = worst is not None and abs(worst[0]) < 0.06 * s_span  # keep the id clear of the figure
-    ax.annotate(emitter.id, (0, emitter.position_m[2]), xytext=(-5, 5) if person_near else (4, 4),
-                textcoords="offset points", ha="right" if person_near else "left", fontsize=7,
-                fontweight="bold", zorder=91,
-                bbox={"boxstyle": "round,pad=0.15", "facecolor": "white", "edgecolor": "none", "alpha": 0.85})
-    ax.set_xlim(float(s_m.min()), float(s_m.max()))
-    ax.set_ylim(float(z_m.min()), float(z_m.max()))
-    ax.set_aspect(exaggeration)
-    ax.set_xlabel(f"distance along azimuth {azimuth:g}° from {emitter.id} [m]  (negative: behind)", fontsize=7)
-    ax.set_ylabel("height, site frame [m]", fontsize=7)
-    ax.tick_params(labelsize=6.5)
-    _colourbar(fig, mesh, ax, label="% of the general-public limit")
-    handles = [
-        Line2D([], [], color="black", linewidth=1.3, label="100 % general public"),
-        Line2D([], [], color=OCC_COLOUR, linewidth=1.6, label="100 % occupational"),
-        Line2D([], [], color="black", linewidth=1.4, label="walking surface"),
-        Line2D([], [], color=HEAD_LINE, linewidth=1.0, linestyle=(0, (4, 2)),
-               label=f"{body_height_m:g} m above the surface"),
-    ]
-    fig.legend(handles=handles, loc="outside lower center", ncol=4, fontsize=6.5, frameon=False)
-    return *_png(fig), {"exaggeration": exaggeration, "worst": worst, "drawn": drawn}

@@ -24,7 +24,7 @@ from pathlib import Path
 import numpy as np
 
 from exposure.assessment import assess, body_offsets, surface_cells
-from exposure.loader import load_site
+from exposure.site import load_site
 
 BANDS = ((739.0, 13.5 + 2.15, 12.0, 2.4), (1960.0, 17.5, 6.8, 1.9), (3550.0, 18.0, 6.0, 1.4))
 
@@ -84,7 +84,7 @@ def main() -> None:
         path = Path(tmp) / "bench-roof.json"
         path.write_text(json.dumps(record))
         site = load_site(path)
-        _, _, inside = surface_cells(site.record.surfaces[0], args.grid_m)
+        _, _, inside = surface_cells(site.surfaces[0], args.grid_m)
         n_points = int(inside.sum()) * len(body_offsets(2.0))
         pairs = n_points * args.emitters
 

@@ -21,7 +21,7 @@ from dataclasses import replace
 import numpy as np
 
 from exposure.antenna import Antenna, PatternCuts
-from exposure.field import CHUNK_POINTS, power_density
+from exposure.models import CHUNK_POINTS, power_density
 
 PANEL = Antenna(
     id="P1", kind="panel", frequency_mhz=1960.0, net_power_w=71.3, gain_dbi=17.5, position_m=(0.0, 0.0, 10.0),

@@ -5,7 +5,7 @@ Used by ``tests/fullwave/test_fullwave.py`` (the acceptance checks) and by
 
 Regions, for each reference antenna described by its datasheet (:mod:`.datasheet`):
 
-* ``element``: the element zone of :func:`exposure.field.element_zone` (no power density
+* ``element``: the element zone of :func:`exposure.models.element_zone` (no power density
   is predicted there: it is measured);
 * ``near``: the rest, nearer than the far-field distance (:func:`.solver.far_field_distance`);
 * ``far``: the rest;
@@ -20,8 +20,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from exposure.field import element_zone, power_density
-from exposure.records import SiteRecord
+from exposure.models import element_zone, power_density
+from exposure.site.record import SiteRecord
 from tests.fullwave import datasheet as ds
 from tests.fullwave.antennas import WireAntenna, wavelength
 from tests.fullwave.solver import Solution, far_field_distance, solve, solve_points
@@ -116,9 +116,9 @@ def distance_ratios(antenna: WireAntenna, model: str = "auto") -> list[tuple[flo
     The limit is set where the full-wave power density along the beam falls to it last at
     each of :data:`BOUNDARIES_M` (power density is linear in power, so choosing the limit
     is choosing the power); the tool's distance is
-    :func:`exposure.field.boresight_distance_to_limit` for that limit.
+    :func:`exposure.models.boresight_distance_to_limit` for that limit.
     """
-    from exposure.field import boresight_distance_to_limit
+    from exposure.models import boresight_distance_to_limit
 
     solution = solve(antenna)
     record = ds.record_for(solution)

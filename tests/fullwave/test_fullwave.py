@@ -109,7 +109,7 @@ def test_spatial_average_is_never_above_peak(antenna):
     margin only ever adds (auto model, same points)."""
     solution = solve(antenna)
     tool = compare.antenna_for(solution)
-    from exposure.field import power_density
+    from exposure.models import power_density
 
     peak = power_density(tool, solution.points_m, evaluation="peak")
     average = power_density(tool, solution.points_m, evaluation="spatial-average")

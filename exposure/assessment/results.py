@@ -8,16 +8,13 @@ part of the JSON.
 from __future__ import annotations
 
 from dataclasses import dataclass, field
-from typing import Literal
 
 import numpy as np
 
-Severity = Literal["info", "measure", "mitigate"]
-Verdict = Literal["compliant", "verify-by-measurement", "mitigation-required"]
-SEVERITIES: tuple[str, ...] = ("info", "measure", "mitigate")
-VERDICT_OF_SEVERITY = {"info": "compliant", "measure": "verify-by-measurement", "mitigate": "mitigation-required"}
-VERDICTS: tuple[str, ...] = ("compliant", "verify-by-measurement", "mitigation-required")
-DIRECTIONS: tuple[str, ...] = ("front", "back", "side", "above", "below")
+from exposure.vocabulary import (
+    Severity,
+    Verdict,
+)
 
 
 @dataclass(frozen=True)
@@ -212,6 +209,20 @@ class Assumption:
 
 
 @dataclass(frozen=True)
+class Section:
+    """A vertical plane along one emitter's boresight azimuth, for the worksheet's figure.
+
+    ``ratio[tier]`` has shape (len(z_m), len(s_m)): the total over all emitters at horizontal
+    distance ``s_m`` from the emitter (negative behind) and site height ``z_m``.
+    """
+
+    emitter_id: str
+    s_m: np.ndarray
+    z_m: np.ndarray
+    ratio: dict[str, np.ndarray]
+
+
+@dataclass(frozen=True)
 class Assessment:
     """The whole-site result a compliance engineer reviews."""
 
@@ -232,8 +243,10 @@ class Assessment:
     verdict: Verdict
     assumptions: tuple[Assumption, ...]
     operators: dict[str, list[str]]  # operator -> emitter ids
-    zones: tuple = ()  # exposure.zones.Zone, per surface and category
-    signs: tuple = ()  # exposure.zones.Sign
+    zones: tuple = ()  # exposure.assessment.zones.Zone, per surface and category
+    signs: tuple = ()  # exposure.assessment.zones.Sign
+    notes: str = ""  # the record's notes, for the worksheet (not part of the JSON)
+    sections: tuple[Section, ...] = ()  # elevation sections, computed only when asked (not part of the JSON)
 
     def to_json(self) -> dict:
         return {

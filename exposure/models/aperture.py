@@ -24,7 +24,7 @@ import math
 
 import numpy as np
 
-from exposure.farfield import spherical_kernel
+from exposure.models.farfield import spherical_kernel
 from exposure.patterns import Pattern
 
 __all__ = [

@@ -2,7 +2,7 @@ r"""Spherical (far-field) model: power density of a point source with a pattern.
 
 The formula (:func:`spherical_power_density`) and the kernel the field evaluation calls on
 antenna-frame coordinates (:func:`spherical_kernel`). Reflection factors are applied by
-the caller (:func:`exposure.field.power_density`).
+the caller (:func:`exposure.models.power_density`).
 """
 
 from __future__ import annotations

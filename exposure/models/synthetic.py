@@ -7,7 +7,7 @@ tilt included), all oriented as the antenna, and their power densities add:
 .. math:: S = \sum_{i=1}^{N} \frac{P\,G}{4\pi N}\,\frac{g(\varphi,\theta_i)}{r_i^2}
 
 The sub-sources lie on the aperture axis (the antenna frame's ``up`` axis, tilted with
-the mechanical tilt; :mod:`exposure.frames`), so every sub-source sees a point at the
+the mechanical tilt; :mod:`exposure.models.frames`), so every sub-source sees a point at the
 same azimuth :math:`\varphi`: the pattern's azimuth part is computed once per point and
 only the vertical part per sub-source.
 

@@ -4,7 +4,7 @@ Close to a long array the power flows out through a cylinder around the aperture
 than from a point, so power density falls as 1/R rather than 1/R². OET 65 gives the
 closed forms (:func:`cylindrical_power_density`) and the distance at which the far-field
 form takes over (:func:`crossover_distance_m`). :func:`cylindrical_kernel` is the model on
-points, as :func:`exposure.field.power_density` calls it.
+points, as :func:`exposure.models.power_density` calls it.
 """
 
 from __future__ import annotations
@@ -13,7 +13,7 @@ import math
 
 import numpy as np
 
-from exposure.farfield import spherical_kernel
+from exposure.models.farfield import spherical_kernel
 from exposure.patterns import Pattern
 
 __all__ = ["cylindrical_power_density", "crossover_distance_m", "cylindrical_kernel", "is_omni_width"]

@@ -236,7 +236,7 @@ def zones_of_surface(
     surface_name : str
     surface : shapely.Polygon
         The surface with its holes.
-    grid : exposure.results.SurfaceGrid
+    grid : exposure.assessment.results.SurfaceGrid
         The surface map (total ratio per tier at cell centres).
     places : dict
         The places evaluated for the zones — the cells inside the map's zones and the hot

@@ -1,0 +1,182 @@
+"""The worksheet's layout: fonts, paragraph styles, colours, a story builder with headings, bullets
+and tables, the page size of the standard's country, and numbered pages with a footer.
+"""
+
+from __future__ import annotations
+
+from exposure.report import fonts, text
+
+FONT = fonts.FONT
+
+
+ACCENT = "#1f4e5a"
+
+
+RULE = "#9aa7ab"
+
+
+HEADER_BG = "#e4eaec"
+
+
+VERDICT_COLOURS = {"compliant": "#2f6b3a", "verify-by-measurement": "#8a5a00", "mitigation-required": "#a01c1c"}
+
+
+VERDICT_TINTS = {"compliant": "#eef5ef", "verify-by-measurement": "#fbf4e4", "mitigation-required": "#fbecec"}
+
+
+def esc(value) -> str:
+    """Text for Paragraph markup: ``&``, ``<`` and ``>`` escaped, nothing interpreted, and every
+    script set in a font that has it (:func:`exposure.report.fonts.markup`)."""
+    return fonts.markup(value)
+
+
+def styles() -> dict:
+    from reportlab.lib import colors
+    from reportlab.lib.styles import ParagraphStyle
+
+    base = ParagraphStyle("body", fontName=FONT, fontSize=8.6, leading=11.2, spaceAfter=3)
+    accent = colors.HexColor(ACCENT)
+    return {
+        "body": base,
+        "small": ParagraphStyle("small", parent=base, fontSize=7.4, leading=9.2),
+        "cell": ParagraphStyle("cell", parent=base, fontSize=7.2, leading=8.8, spaceAfter=0),
+        "cell_r": ParagraphStyle("cell_r", parent=base, fontSize=7.2, leading=8.8, spaceAfter=0, alignment=2),
+        "head": ParagraphStyle("head", parent=base, fontName=f"{FONT}-Bold", fontSize=7.2, leading=8.8, spaceAfter=0),
+        "head_r": ParagraphStyle("head_r", parent=base, fontName=f"{FONT}-Bold", fontSize=7.2, leading=8.8,
+                                 spaceAfter=0, alignment=2),
+        "title": ParagraphStyle("title", parent=base, fontName=f"{FONT}-Bold", fontSize=17, leading=21,
+                                textColor=accent, spaceAfter=2),
+        "subtitle": ParagraphStyle("subtitle", parent=base, fontSize=12, leading=15, spaceAfter=8),
+        "h1": ParagraphStyle("h1", parent=base, fontName=f"{FONT}-Bold", fontSize=12.5, leading=15.5,
+                             textColor=accent, spaceBefore=10, spaceAfter=5),
+        "h2": ParagraphStyle("h2", parent=base, fontName=f"{FONT}-Bold", fontSize=9.6, leading=12,
+                             spaceBefore=6, spaceAfter=3),
+        "verdict": ParagraphStyle("verdict", parent=base, fontName=f"{FONT}-Bold", fontSize=13, leading=16,
+                                  spaceAfter=3),
+        "bullet": ParagraphStyle("bullet", parent=base, leftIndent=12, bulletIndent=2),
+        "caption": ParagraphStyle("caption", parent=base, fontSize=7.6, leading=9.6, textColor=colors.HexColor("#333333")),
+    }
+
+
+class Builder:
+    """Collects flowables; knows the styles and the frame width."""
+
+    def __init__(self, width: float):
+        self.width = width
+        self.st = styles()
+        self.story: list = []
+        self.section_number = 0
+
+    def add(self, *flowables) -> None:
+        self.story.extend(flowables)
+
+    def p(self, markup: str, style: str = "body"):
+        from reportlab.platypus import Paragraph
+
+        return Paragraph(markup, self.st[style])
+
+    def heading(self, title: str, *, new_page: bool = False, room: float = 120) -> None:
+        """A numbered section heading; a new page unless *room* [pt] is left below it."""
+        from reportlab.platypus import CondPageBreak, PageBreak
+
+        self.section_number += 1
+        self.add(PageBreak() if new_page else CondPageBreak(room))
+        self.add(self.p(f"{self.section_number}&nbsp;&nbsp;{esc(title)}", "h1"))
+
+    def bullets(self, items: list[str], style: str = "bullet") -> None:
+        from reportlab.platypus import Paragraph
+
+        for item in items:
+            self.add(Paragraph(item, self.st[style], bulletText="•"))
+
+    def table(self, header: list[str], rows: list[list[str]], widths: list[float], *, right: set[int] = frozenset(),
+              group_rows: tuple[int, ...] = (), zebra: bool = True):
+        """A table of Paragraph cells; *widths* as fractions of the frame width."""
+        from reportlab.lib import colors
+        from reportlab.platypus import Table, TableStyle
+
+        def cell(value: str, i: int, head: bool = False):
+            style = ("head" if head else "cell") + ("_r" if i in right else "")
+            return self.p(value, style)
+
+        data = [[cell(esc(h), i, True) for i, h in enumerate(header)]]
+        data += [[cell(v, i) for i, v in enumerate(row)] for row in rows]
+        total = sum(widths)
+        table = Table(data, colWidths=[self.width * w / total for w in widths], repeatRows=1, hAlign="LEFT")
+        commands = [
+            ("BACKGROUND", (0, 0), (-1, 0), colors.HexColor(HEADER_BG)),
+            ("LINEBELOW", (0, 0), (-1, 0), 0.8, colors.HexColor(ACCENT)),
+            ("LINEBELOW", (0, 1), (-1, -1), 0.25, colors.HexColor(RULE)),
+            ("VALIGN", (0, 0), (-1, -1), "TOP"),
+            ("TOPPADDING", (0, 0), (-1, -1), 2.2),
+            ("BOTTOMPADDING", (0, 0), (-1, -1), 2.2),
+            ("LEFTPADDING", (0, 0), (-1, -1), 3),
+            ("RIGHTPADDING", (0, 0), (-1, -1), 3),
+        ]
+        for r in group_rows:
+            commands += [("SPAN", (0, r + 1), (-1, r + 1)), ("BACKGROUND", (0, r + 1), (-1, r + 1), colors.HexColor("#f3f5f6"))]
+        if zebra and not group_rows:
+            for r in range(2, len(data), 2):
+                commands.append(("BACKGROUND", (0, r), (-1, r), colors.HexColor("#f7f9f9")))
+        table.setStyle(TableStyle(commands))
+        self.add(table)
+        return table
+
+
+def boxed(builder: Builder, flowables: list, colour: str, tint: str):
+    from reportlab.lib import colors
+    from reportlab.platypus import Table, TableStyle
+
+    box = Table([[flowables]], colWidths=[builder.width], hAlign="LEFT")
+    box.setStyle(TableStyle([
+        ("BACKGROUND", (0, 0), (-1, -1), colors.HexColor(tint)),
+        ("LINEBEFORE", (0, 0), (0, -1), 5, colors.HexColor(colour)),
+        ("BOX", (0, 0), (-1, -1), 0.4, colors.HexColor(colour)),
+        ("LEFTPADDING", (0, 0), (-1, -1), 10),
+        ("TOPPADDING", (0, 0), (-1, -1), 6),
+        ("BOTTOMPADDING", (0, 0), (-1, -1), 6),
+    ]))
+    return box
+
+
+def page_size(standard: str):
+    from reportlab.lib.pagesizes import A4, letter
+
+    return letter if standard in ("fcc", "canada-sc6") else A4
+
+
+def numbered_canvas(site_id: str):
+    from reportlab.pdfgen.canvas import Canvas
+
+    class NumberedCanvas(Canvas):
+        """Defers each page so that the footer can say 'page n of N'."""
+
+        def __init__(self, *args, **kwargs):
+            super().__init__(*args, **kwargs)
+            self._pages: list[dict] = []
+
+        def showPage(self):  # noqa: N802 (reportlab's name)
+            self._pages.append(dict(self.__dict__))
+            self._startPage()
+
+        def save(self):
+            total = len(self._pages)
+            for state in self._pages:
+                self.__dict__.update(state)
+                self._footer(total)
+                super().showPage()
+            super().save()
+
+        def _footer(self, total: int) -> None:
+            width, _ = self._pagesize
+            self.saveState()
+            self.setFont(FONT, 7)
+            self.setFillGray(0.3)
+            self.setStrokeGray(0.6)
+            self.setLineWidth(0.4)
+            self.line(40, 34, width - 40, 34)
+            self.drawString(40, 24, f"{site_id} · RF exposure compliance worksheet · {text.FOOTER_NOTE}")
+            self.drawRightString(width - 40, 24, f"page {self._pageNumber} of {total}")
+            self.restoreState()
+
+    return NumberedCanvas

@@ -16,6 +16,11 @@ import numpy as np
 from exposure.units import ERP_TO_EIRP, db_to_linear, wavelength_m
 from exposure.vocabulary import EmitterKind
 
+MAX_GAIN_DBI = 60.0
+"""Highest plausible peak gain [dBi] (a record or option beyond it is refused)."""
+MIN_GAIN_DBI = -20.0
+"""Lowest plausible peak gain [dBi]."""
+
 DEFAULT_SIDELOBE_FLOOR_DB = 13.0
 """Side-lobe floor where a record gives none [dB]: a uniform array's first side lobe is
 -13.26 dB (textbook array theory; docs/references.md § 9), so a deeper default would hide it."""

@@ -1,9 +1,18 @@
 """Distances to a limit: how far an emitter alone reaches a power density along a line.
+
+One search serves every distance the tool reports (:func:`last_crossings`): the line is
+sampled at log-spaced distances out past a bracket where the prediction is known to be below
+the limits, the outermost sample at or above each limit is taken, and the crossing after it
+is refined on linear grids to a tolerance, reported on the far (safe) side.
+:func:`boresight_distance_to_limit` runs it along the main beam (the main-beam boundary, to
+0.1 mm), :func:`ray_extents` along any direction for several limits at once (the box
+boundary, to 1 mm).
 """
 
 from __future__ import annotations
 
 import math
+from collections.abc import Callable, Sequence
 
 import numpy as np
 
@@ -12,15 +21,65 @@ from exposure.errors import InputError
 from exposure.models.density import (
     _is_spatial_peak,
     model_for,
+    power_density,
     power_density_along_beam,
     reflection_factor,
 )
 from exposure.models.prepared import minimum_distance_m, prepare
 
-_SCAN_SAMPLES = 400
+SCAN_SAMPLES = 400
+"""Log-spaced samples of a line's first scan."""
 
 
-_REFINE_SAMPLES = 64
+def last_crossings(
+    along: Callable[[np.ndarray], np.ndarray],
+    scan_m: np.ndarray,
+    limits_w_m2: Sequence[float],
+    *,
+    refine: int,
+    tolerance: float,
+) -> list[float]:
+    """The distance [m] beyond which the prediction on a line stays below each limit.
+
+    Parameters
+    ----------
+    along : callable
+        Power density [W/m²] at an array of distances along the line [m].
+    scan_m : ndarray
+        Increasing distances of the first scan [m]; the last should be where the prediction
+        is below every limit (otherwise it is returned for the limits still reached there).
+    limits_w_m2 : sequence of float
+        Power-density limits [W/m²].
+    refine : int
+        Intervals of each refinement pass (a pass narrows the bracket *refine* times).
+    tolerance : float
+        Refine until the bracket is at most ``max(tolerance, tolerance · hi)`` [m].
+
+    Returns
+    -------
+    list of float
+        Per limit: the far end of the bracket of the outermost sample at or above the limit
+        (conservative); 0 where no sample reaches it.
+    """
+    values = along(scan_m)
+    out = []
+    for limit in limits_w_m2:
+        above = np.flatnonzero(values >= limit)
+        if above.size == 0:
+            out.append(0.0)
+            continue
+        k = int(above[-1])
+        if k == len(scan_m) - 1:
+            out.append(float(scan_m[-1]))
+            continue
+        lo, hi = float(scan_m[k]), float(scan_m[k + 1])
+        while hi - lo > max(tolerance, tolerance * hi):  # lo is at or above the limit, hi below it
+            fine = np.linspace(lo, hi, refine + 1)
+            inner = np.flatnonzero(along(fine[1:-1]) >= limit)
+            j = int(inner[-1]) + 1 if inner.size else 0
+            lo, hi = float(fine[j]), float(fine[j + 1])
+        out.append(hi)
+    return out
 
 
 def boresight_distance_to_limit(
@@ -53,10 +112,9 @@ def boresight_distance_to_limit(
     Bracketing: every model is at most the spherical model with the peak gain on the
     beam, so the prediction is below the limit beyond
     :math:`\sqrt{F\cdot EIRP/(4\pi S_L)}` (checked, and widened if not). The beam is
-    sampled at 400 log-spaced distances from :func:`minimum_distance_m` to there, the
-    outermost sample above the limit is taken, and the crossing after it is found by
-    refining that interval 64 points at a time to 0.1 mm or 0.01 %, whichever is larger. The returned end is the one on
-    the safe side (at or below the limit).
+    sampled at 400 log-spaced distances from :func:`minimum_distance_m` to there and the
+    crossing refined 64-fold a pass to 0.1 mm or 0.01 %, whichever is larger
+    (:func:`last_crossings`); the returned end is the one on the safe side.
     """
     limit = float(limit_w_m2)
     if not (math.isfinite(limit) and limit > 0.0):
@@ -79,16 +137,28 @@ def boresight_distance_to_limit(
         r_hi *= 1.5
     else:  # pragma: no cover - a model far above the spherical bound
         raise AssertionError("no distance found where the prediction is below the limit")
-    grid = np.geomspace(r_lo, r_hi, _SCAN_SAMPLES)
-    s = along(grid)
-    above = np.flatnonzero(s > limit)
-    if above.size == 0:
-        return 0.0
-    i = int(above[-1])
-    lo, hi = float(grid[i]), float(grid[i + 1])
-    while hi - lo > max(1e-4, 1e-4 * hi):  # 64 points a step: each narrows the bracket 64 times
-        fine = np.linspace(lo, hi, _REFINE_SAMPLES + 1)
-        inner = np.flatnonzero(along(fine[1:-1]) > limit)  # lo is above the limit, hi at or below it
-        k = int(inner[-1]) + 1 if inner.size else 0
-        lo, hi = float(fine[k]), float(fine[k + 1])
-    return hi
+    scan = np.geomspace(r_lo, r_hi, SCAN_SAMPLES)
+    return last_crossings(along, scan, [limit], refine=64, tolerance=1e-4)[0]
+
+
+def ray_extents(antenna: Antenna, direction: np.ndarray, limits_w_m2: Sequence[float], reflection: float) -> list[float]:
+    """Largest distance [m] along *direction* from the centre of radiation at which the
+    emitter alone reaches each of *limits_w_m2*; 0 where it never does. One scan serves
+    every limit.
+
+    Scans 400 log-spaced distances from 1 mm out to 1.5 times where a spherical bound with
+    the peak gain falls below the lowest limit (a dish: at least its far-field distance
+    0.6·D²/λ), then refines each limit's outermost crossing 32-fold a pass to 1 mm or 0.1 %
+    (:func:`last_crossings`; reported on the far side: conservative).
+    """
+    lowest = min(limits_w_m2)
+    bound = math.sqrt(reflection * antenna.eirp_w / (4 * math.pi * lowest))
+    if antenna.kind == "dish" and antenna.diameter_m:
+        bound = max(bound, 0.6 * antenna.diameter_m**2 / antenna.wavelength_m)
+    scan = np.geomspace(1e-3, max(1.5 * bound, 0.5), SCAN_SAMPLES)
+    origin = np.asarray(antenna.position_m)
+
+    def along(r: np.ndarray) -> np.ndarray:
+        return power_density(antenna, origin + r[:, None] * direction, reflection=reflection)
+
+    return last_crossings(along, scan, limits_w_m2, refine=32, tolerance=1e-3)

@@ -13,12 +13,10 @@ from pydantic import (
     model_validator,
 )
 
-from exposure.antenna import DEFAULT_SIDELOBE_FLOOR_DB, Antenna, PatternCuts
+from exposure.antenna import DEFAULT_SIDELOBE_FLOOR_DB, MAX_GAIN_DBI, MIN_GAIN_DBI, Antenna, PatternCuts
 from exposure.site.fields import (
     GAIN_REFUSE_MARGIN_DB,
     GAIN_WARN_MARGIN_DB,
-    MAX_GAIN_DBI,
-    MIN_GAIN_DBI,
     ApertureLength,
     Azimuth,
     Beamwidth,

@@ -16,17 +16,10 @@ from pydantic import (
     StringConstraints,
 )
 
-# Plausibility bounds. A gain outside them is refused outright; the softer test against
-# the beamwidths is in `gain_problem`.
-MAX_GAIN_DBI = 60.0
-
-
-MIN_GAIN_DBI = -20.0
-
+# Plausibility bounds (MAX_GAIN_DBI, MIN_GAIN_DBI in exposure.antenna): a gain outside them is
+# refused outright; the softer test against the beamwidths is in `gain_problem`.
 
 GAIN_REFUSE_MARGIN_DB = 6.0
-
-
 GAIN_WARN_MARGIN_DB = 1.5
 
 

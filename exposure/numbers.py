@@ -18,7 +18,7 @@ def number(value: float | None, digits: int = 3) -> str:
         return "-"
     if value == 0:
         return "0"
-    if abs(value) >= 10 ** digits:
+    if abs(value) >= 10**digits:
         return f"{value:,.0f}"
     text = f"{value:.{digits}g}"
     if "e" in text:  # tiny values: plain decimals, never exponents, in a worksheet

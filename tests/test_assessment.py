@@ -11,6 +11,7 @@ from __future__ import annotations
 import copy
 import json
 import math
+from itertools import pairwise
 
 import numpy as np
 import pytest
@@ -30,18 +31,37 @@ FCC_OCC_ABOVE_1500 = 50.0  # W/m² (5 mW/cm²), confirmed
 def site_dict(emitters, surfaces=None, work=None, **site):
     return {
         "schema_version": 1,
-        "site": {"id": "t", "name": "Test site (invented)", "standard": "fcc", "ground_reflection": "typical",
-                 "grid_m": 0.5, **site},
-        "surfaces": surfaces or [{"name": "Terrace", "access": "public", "outline": [[-10, 2], [10, 2], [10, 30], [-10, 30]]}],
+        "site": {
+            "id": "t",
+            "name": "Test site (invented)",
+            "standard": "fcc",
+            "ground_reflection": "typical",
+            "grid_m": 0.5,
+            **site,
+        },
+        "surfaces": surfaces
+        or [{"name": "Terrace", "access": "public", "outline": [[-10, 2], [10, 2], [10, 30], [-10, 30]]}],
         "emitters": emitters,
         "work_positions": work or [],
     }
 
 
 def panel(**changes):
-    base = {"id": "P1", "operator": "Operator A (invented)", "kind": "panel", "frequency_mhz": 2000,
-            "eirp_w": 2000.0, "x_m": 0.0, "y_m": 0.0, "z_m": 1.4, "azimuth_deg": 0,
-            "h_beamwidth_deg": 65, "v_beamwidth_deg": 12, "front_to_back_db": 25, "length_m": 0.5}
+    base = {
+        "id": "P1",
+        "operator": "Operator A (invented)",
+        "kind": "panel",
+        "frequency_mhz": 2000,
+        "eirp_w": 2000.0,
+        "x_m": 0.0,
+        "y_m": 0.0,
+        "z_m": 1.4,
+        "azimuth_deg": 0,
+        "h_beamwidth_deg": 65,
+        "v_beamwidth_deg": 12,
+        "front_to_back_db": 25,
+        "length_m": 0.5,
+    }
     base.update(changes)
     return base
 
@@ -120,7 +140,10 @@ def test_work_positions_in_front_of_and_behind_a_panel(load):
     """In front (3 m) a 20 kW EIRP panel gives about 2.56·20000/(4π·9)/50 = 9 × the
     occupational limit → power it down; behind it the 25 dB front-to-back ratio leaves
     9/316 ≈ 3 % → nothing to power down (OET 65 far field; front-to-back definition)."""
-    work = [{"name": "In front", "x_m": 0, "y_m": 3.0, "z_m": 0.0}, {"name": "Behind", "x_m": 0, "y_m": -3.0, "z_m": 0.0}]
+    work = [
+        {"name": "In front", "x_m": 0, "y_m": 3.0, "z_m": 0.0},
+        {"name": "Behind", "x_m": 0, "y_m": -3.0, "z_m": 0.0},
+    ]
     result = assess(load(site_dict([panel(eirp_w=20_000.0)], work=work)))
     front, back = result.work_positions
     assert front.ratio["occupational"] > 1 and front.power_down == ("P1",)
@@ -189,8 +212,9 @@ def test_power_and_duty_scale_linearly(load, key, value, factor):
 def test_rotating_and_translating_the_site_changes_nothing(load):
     """Invariance under a rigid motion: turn the whole site 90° clockwise seen from above
     ((x, y) → (y, −x), azimuth + 90°) and move it; maxima and areas stay the same."""
-    data = site_dict([panel(eirp_w=20_000.0, azimuth_deg=20, x_m=1.0, y_m=0.5)],
-                     work=[{"name": "W", "x_m": 1, "y_m": 4, "z_m": 0}])
+    data = site_dict(
+        [panel(eirp_w=20_000.0, azimuth_deg=20, x_m=1.0, y_m=0.5)], work=[{"name": "W", "x_m": 1, "y_m": 4, "z_m": 0}]
+    )
 
     def moved(d, dx=100.0, dy=-40.0, dz=3.0):
         d = copy.deepcopy(d)
@@ -209,7 +233,9 @@ def test_rotating_and_translating_the_site_changes_nothing(load):
         assert b.surfaces[0].max_ratio[tier] == pytest.approx(a.surfaces[0].max_ratio[tier], rel=1e-6)
         assert b.surfaces[0].area_above_m2[tier] == pytest.approx(a.surfaces[0].area_above_m2[tier], rel=1e-6)
         assert b.work_positions[0].ratio[tier] == pytest.approx(a.work_positions[0].ratio[tier], rel=1e-6)
-        assert b.emitters[0].boundary_m[tier]["front"] == pytest.approx(a.emitters[0].boundary_m[tier]["front"], rel=1e-3)
+        assert b.emitters[0].boundary_m[tier]["front"] == pytest.approx(
+            a.emitters[0].boundary_m[tier]["front"], rel=1e-3
+        )
 
 
 def test_mirror_symmetric_site_gives_a_mirror_symmetric_map(load):
@@ -351,9 +377,11 @@ def test_site_limits_file_key_is_used(tmp_path):
 def test_progress_reaches_its_total(load):
     """The progress callback counts point-emitter pairs and ends exactly at its total."""
     calls = []
-    assess(load(site_dict([panel(), panel(id="P2", x_m=1.0)])), progress=lambda done, total: calls.append((done, total)))
+    assess(
+        load(site_dict([panel(), panel(id="P2", x_m=1.0)])), progress=lambda done, total: calls.append((done, total))
+    )
     assert calls and calls[-1][0] == calls[-1][1]
-    assert all(a[0] <= b[0] for a, b in zip(calls, calls[1:]))
+    assert all(a[0] <= b[0] for a, b in pairwise(calls))
 
 
 def test_hot_spots_catch_a_zone_the_grid_misses(load):
@@ -368,8 +396,12 @@ def test_hot_spots_catch_a_zone_the_grid_misses(load):
 
 @settings(max_examples=15, deadline=None, suppress_health_check=[HealthCheck.function_scoped_fixture])
 @given(
-    x=st.floats(-12, 12), y=st.floats(-5, 35), z=st.floats(0.0, 6.0),
-    azimuth=st.floats(0, 360), tilt=st.floats(-10, 30), kind=st.sampled_from(["panel", "array", "omni"]),
+    x=st.floats(-12, 12),
+    y=st.floats(-5, 35),
+    z=st.floats(0.0, 6.0),
+    azimuth=st.floats(0, 360),
+    tilt=st.floats(-10, 30),
+    kind=st.sampled_from(["panel", "array", "omni"]),
 )
 def test_random_sites_give_finite_results(load, x, y, z, azimuth, tilt, kind):
     """Whatever the placement and orientation (antenna on, above or beside the surface),

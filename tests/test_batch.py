@@ -21,13 +21,12 @@ import tomllib
 from pathlib import Path
 
 import pytest
+from conftest import REPO, SAMPLE_SITES
 from typer.testing import CliRunner
 
 from exposure import __version__
 from exposure.batch import CSV_COLUMNS, SiteRow
 from exposure.cli import app
-
-from conftest import REPO, SAMPLE_SITES
 
 HAS_DISTRIBUTED = importlib.util.find_spec("distributed") is not None
 needs_distributed = pytest.mark.skipif(not HAS_DISTRIBUTED, reason="needs the cluster extra (dask[distributed])")
@@ -183,7 +182,7 @@ def test_summary_row_definitions():
         ],
         "flags": [{"severity": "measure"}, {"severity": "info"}, {"severity": "measure"}],
     }
-    for s, tier in zip(result["surfaces"], ("general_public", "occupational", None)):
+    for s, tier in zip(result["surfaces"], ("general_public", "occupational", None), strict=True):
         s["governing_tier"] = tier
     row = SiteRow.from_result("x.toml", result, "done", 1.0)
     # since the rules issue each tier's figure comes from the surfaces judged against that tier
@@ -191,7 +190,7 @@ def test_summary_row_definitions():
     # figure took the occupational roof's 200 %
     assert row.max_percent == {"general_public": 50.0, "occupational": 40.0}
     assert row.flags == {"info": 1, "measure": 2, "mitigate": 0}
-    assert dict(zip(CSV_COLUMNS, row.to_csv()))["max_percent_occupational"] == "40"
+    assert dict(zip(CSV_COLUMNS, row.to_csv(), strict=True))["max_percent_occupational"] == "40"
 
 
 @pytest.fixture

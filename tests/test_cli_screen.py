@@ -43,8 +43,20 @@ def test_cylindrical_distance_is_the_oet65_closed_form_inside_rc():
     p, g_dbi, theta, h = 40.0, 17.0, 65.0, 1.9
     loss = 1.0
     out = screen_json(
-        "--frequency-mhz", "1960", "--power-w", str(p), "--gain-dbi", str(g_dbi), "--line-loss-db", str(loss),
-        "--model", "cylindrical", "--h-beamwidth-deg", str(theta), "--length-m", str(h),
+        "--frequency-mhz",
+        "1960",
+        "--power-w",
+        str(p),
+        "--gain-dbi",
+        str(g_dbi),
+        "--line-loss-db",
+        str(loss),
+        "--model",
+        "cylindrical",
+        "--h-beamwidth-deg",
+        str(theta),
+        "--length-m",
+        str(h),
     )
     net = p * 10 ** (-loss / 10)
     r_c = 10 ** (g_dbi / 10) * theta * h / 720
@@ -57,7 +69,9 @@ def test_cylindrical_distance_is_the_oet65_closed_form_inside_rc():
 
 def test_omni_cylindrical_distance():
     """OET 65 omni form: R = P / (2 pi h S_L) when below R_c = G h / 2."""
-    out = screen_json("--frequency-mhz", "850", "--power-w", "100", "--gain-dbi", "10", "--model", "cylindrical", "--length-m", "1.2")
+    out = screen_json(
+        "--frequency-mhz", "850", "--power-w", "100", "--gain-dbi", "10", "--model", "cylindrical", "--length-m", "1.2"
+    )
     limit = 850 / 1500 * 10  # f/1500 mW/cm2 -> W/m2
     assert out["boundary_m"]["general_public"] == pytest.approx(100 / (2 * math.pi * 1.2 * limit), rel=0.01)
 
@@ -66,7 +80,9 @@ def test_aperture_distance_matches_the_oet65_forms():
     """OET 65 dish (D 3 m, 6 GHz, 100 W, eta 0.55): the general-public limit (10 W/m2) is
     reached in the far field, R = sqrt(P G / (4 pi S_L)), since S_nf R_nf / R_ff = 13 > 10;
     the occupational limit (50 W/m2) exceeds S_nf = 31.1: distance 0. To 2 %."""
-    out = screen_json("--frequency-mhz", "6000", "--power-w", "100", "--diameter-m", "3", "--aperture-efficiency", "0.55")
+    out = screen_json(
+        "--frequency-mhz", "6000", "--power-w", "100", "--diameter-m", "3", "--aperture-efficiency", "0.55"
+    )
     assert out["model"] == "aperture"
     g = 0.55 * (math.pi * 3 / (299.792458 / 6000)) ** 2
     assert out["boundary_m"]["general_public"] == pytest.approx(math.sqrt(100 * g / (4 * math.pi * 10)), rel=0.02)
@@ -95,8 +111,18 @@ def test_exemption_at_a_distance():
 def test_json_has_the_interface_keys_and_the_models_side_by_side():
     """INTERFACE.md: model, eirp_w, erp_w, boundary_m.{general_public, occupational}."""
     out = screen_json(
-        "--frequency-mhz", "1960", "--power-w", "40", "--gain-dbi", "17.5", "--h-beamwidth-deg", "65",
-        "--v-beamwidth-deg", "6.8", "--length-m", "1.9",
+        "--frequency-mhz",
+        "1960",
+        "--power-w",
+        "40",
+        "--gain-dbi",
+        "17.5",
+        "--h-beamwidth-deg",
+        "65",
+        "--v-beamwidth-deg",
+        "6.8",
+        "--length-m",
+        "1.9",
     )
     assert {"model", "eirp_w", "erp_w", "boundary_m"} <= set(out)
     assert set(out["boundary_m"]) == {"general_public", "occupational"}
@@ -107,7 +133,18 @@ def test_json_has_the_interface_keys_and_the_models_side_by_side():
 
 def test_human_output_lists_each_model():
     """The table shows each applicable model, EIRP and ERP, and says which model was used."""
-    result = run("--frequency-mhz", "1960", "--power-w", "40", "--gain-dbi", "17.5", "--h-beamwidth-deg", "65", "--length-m", "1.9")
+    result = run(
+        "--frequency-mhz",
+        "1960",
+        "--power-w",
+        "40",
+        "--gain-dbi",
+        "17.5",
+        "--h-beamwidth-deg",
+        "65",
+        "--length-m",
+        "1.9",
+    )
     assert result.exit_code == 0, result.output
     for word in ("spherical", "cylindrical", "EIRP", "ERP", "general_public", "occupational", "not applicable"):
         assert word in result.stdout
@@ -121,8 +158,14 @@ def test_human_output_lists_each_model():
         (["--frequency-mhz", "nan", "--eirp-w", "10"], "--frequency-mhz nan"),
         (["--frequency-mhz", "1960", "--eirp-w", "0"], "--eirp-w 0.0"),
         (["--frequency-mhz", "1960", "--power-w", "-1", "--gain-dbi", "3"], "--power-w -1.0"),
-        (["--frequency-mhz", "1960", "--eirp-w", "10", "--model", "foo"], "--model 'foo': unknown model; choose one of"),
-        (["--frequency-mhz", "1960", "--power-w", "10", "--gain-dbi", "15", "--model", "cylindrical"], "--model cylindrical needs --length-m"),
+        (
+            ["--frequency-mhz", "1960", "--eirp-w", "10", "--model", "foo"],
+            "--model 'foo': unknown model; choose one of",
+        ),
+        (
+            ["--frequency-mhz", "1960", "--power-w", "10", "--gain-dbi", "15", "--model", "cylindrical"],
+            "--model cylindrical needs --length-m",
+        ),
         (["--frequency-mhz", "1960", "--eirp-w", "10", "--power-w", "10"], "--eirp-w and --power-w"),
         (["--frequency-mhz", "1960"], "--eirp-w or --power-w is required"),
         (["--eirp-w", "10"], "--frequency-mhz is required"),
@@ -148,14 +191,18 @@ def test_default_reflection_is_the_site_default():
 
 def test_a_sector_kind_without_its_horizontal_beamwidth_is_refused():
     """A panel given without --h-beamwidth-deg is an input error, not silently an omni."""
-    result = run("--frequency-mhz", "1960", "--power-w", "40", "--gain-dbi", "17.5", "--kind", "panel", "--length-m", "1.9")
+    result = run(
+        "--frequency-mhz", "1960", "--power-w", "40", "--gain-dbi", "17.5", "--kind", "panel", "--length-m", "1.9"
+    )
     assert result.exit_code == 2, result.output
     assert "--kind panel needs --h-beamwidth-deg" in result.stderr
 
 
 def test_inferred_kind_is_said():
     """Without --kind the output says which kind it took and how to say otherwise."""
-    out = screen_json("--frequency-mhz", "850", "--power-w", "100", "--gain-dbi", "10", "--length-m", "1.2", "--v-beamwidth-deg", "8")
+    out = screen_json(
+        "--frequency-mhz", "850", "--power-w", "100", "--gain-dbi", "10", "--length-m", "1.2", "--v-beamwidth-deg", "8"
+    )
     assert out["kind"] == "omni" and "inferred" in out["kind_note"]
 
 
@@ -164,7 +211,7 @@ def test_auto_is_never_shorter_than_the_site_assessment(record, write_record, ev
     """`screen --model auto` gives at least the main-beam distance the assessment uses for the
     same emitter (its `main_beam_boundary_m`), whatever the site's evaluation: both call the
     same auto model, screen at the spatial peak."""
-    panel = {k: v for k, v in record["emitters"][0].items()}
+    panel = dict(record["emitters"][0].items())
     record["emitters"] = [panel]
     record["site"]["evaluation"] = evaluation
     record["site"]["ground_reflection"] = "none"
@@ -172,8 +219,22 @@ def test_auto_is_never_shorter_than_the_site_assessment(record, write_record, ev
     assert assessed.exit_code == 0, assessed.output
     site_boundary = json.loads(assessed.stdout)["emitters"][0]["main_beam_boundary_m"]
     out = screen_json(
-        "--frequency-mhz", "1960", "--power-w", "80", "--line-loss-db", "0.5", "--gain-dbi", "17.5", "--kind", "panel",
-        "--h-beamwidth-deg", "65", "--v-beamwidth-deg", "7", "--length-m", "1.8",
+        "--frequency-mhz",
+        "1960",
+        "--power-w",
+        "80",
+        "--line-loss-db",
+        "0.5",
+        "--gain-dbi",
+        "17.5",
+        "--kind",
+        "panel",
+        "--h-beamwidth-deg",
+        "65",
+        "--v-beamwidth-deg",
+        "7",
+        "--length-m",
+        "1.8",
     )
     # the record's elec_tilt_deg (2) steers the beam; on the beam the distances agree to 2 %
     for tier in ("general_public", "occupational"):
@@ -185,8 +246,20 @@ def test_directional_kind_uses_the_endfire_model():
     """A Yagi (kind directional, length along boresight) resolves to the endfire model, which
     from beyond its length is at least the spherical distance (nearer-end distance rule)."""
     out = screen_json(
-        "--frequency-mhz", "900", "--power-w", "40", "--gain-dbi", "12", "--kind", "directional",
-        "--h-beamwidth-deg", "46", "--v-beamwidth-deg", "40", "--length-m", "0.45",
+        "--frequency-mhz",
+        "900",
+        "--power-w",
+        "40",
+        "--gain-dbi",
+        "12",
+        "--kind",
+        "directional",
+        "--h-beamwidth-deg",
+        "46",
+        "--v-beamwidth-deg",
+        "40",
+        "--length-m",
+        "0.45",
     )
     assert out["model"] == "endfire"
     for tier in ("general_public", "occupational"):

@@ -6,13 +6,12 @@ from __future__ import annotations
 import json
 
 import pytest
+from conftest import BASE_RECORD, REPO, SAMPLE_SITES
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 from typer.testing import CliRunner
 
 from exposure.cli import app
-
-from conftest import BASE_RECORD, REPO, SAMPLE_SITES
 
 runner = CliRunner()
 
@@ -41,7 +40,7 @@ def test_summary_lists_eirp_and_erp(record, write_record):
     result = run("validate", write_record(record), "--json")
     assert result.exit_code == 0, result.output
     a1 = json.loads(result.output)["emitters"][0]
-    eirp = 40 * 2 * 10 ** (-0.05) * 10 ** 1.75
+    eirp = 40 * 2 * 10 ** (-0.05) * 10**1.75
     assert a1["eirp_w"] == pytest.approx(eirp, rel=1e-9)
     assert a1["erp_w"] == pytest.approx(eirp / 1.64, rel=1e-9)
 
@@ -59,7 +58,7 @@ def test_power_dbm(record, write_record):
     del record["emitters"][0]["power_w"]
     record["emitters"][0]["power_dbm"] = 46.0206
     result = run("validate", write_record(record), "--json")
-    assert json.loads(result.output)["emitters"][0]["net_power_w"] == pytest.approx(80 * 10 ** -0.05, rel=1e-5)
+    assert json.loads(result.output)["emitters"][0]["net_power_w"] == pytest.approx(80 * 10**-0.05, rel=1e-5)
 
 
 def emitter(record, **changes):
@@ -79,7 +78,11 @@ BAD = {
     "unknown site key": (lambda r: r["site"].update(grid=1) or r, "site.grid", "did you mean 'grid_m'"),
     "missing key": (lambda r: r["emitters"][0].pop("x_m") and r, "emitters[0].x_m", "required key missing"),
     "missing length": (lambda r: r["emitters"][0].pop("length_m") and r, "emitters[0].length_m", "required"),
-    "duty factor above 1": (lambda r: emitter(r, duty_factor=1.2), "emitters[0].duty_factor", "less than or equal to 1"),
+    "duty factor above 1": (
+        lambda r: emitter(r, duty_factor=1.2),
+        "emitters[0].duty_factor",
+        "less than or equal to 1",
+    ),
     "zero beamwidth": (lambda r: emitter(r, h_beamwidth_deg=0), "emitters[0].h_beamwidth_deg", "greater than 0"),
     "beamwidth above 360": (lambda r: emitter(r, v_beamwidth_deg=400), "emitters[0].v_beamwidth_deg", "360"),
     "absurd gain": (lambda r: emitter(r, gain_dbi=35), "emitters[0]", "impossible"),
@@ -91,15 +94,33 @@ BAD = {
     "upper case site id": (lambda r: r["site"].update(id="Roof1") or r, "site.id", ""),
     "duplicate emitter id": (lambda r: r["emitters"][1].update(id="A1") or r, "duplicate emitter id 'A1'", ""),
     "duplicate surface": (lambda r: r["surfaces"].append(dict(r["surfaces"][0])) or r, "duplicate surface name", ""),
-    "two-point outline": (lambda r: r["surfaces"][0].update(outline=[[0, 0], [1, 1]]) or r, "surfaces[0].outline", "at least 3"),
+    "two-point outline": (
+        lambda r: r["surfaces"][0].update(outline=[[0, 0], [1, 1]]) or r,
+        "surfaces[0].outline",
+        "at least 3",
+    ),
     "self-crossing outline": (
         lambda r: r["surfaces"][0].update(outline=[[0, 0], [10, 10], [10, 0], [0, 10]]) or r,
-        "surfaces[0].outline", "crosses itself"),
-    "zero-area outline": (lambda r: r["surfaces"][0].update(outline=[[0, 0], [1, 1], [2, 2]]) or r, "surfaces[0].outline", "no area"),
-    "three-coordinate vertex": (lambda r: r["surfaces"][0].update(outline=[[0, 0, 1], [1, 0], [0, 1]]) or r, "surfaces[0].outline[0]", ""),
+        "surfaces[0].outline",
+        "crosses itself",
+    ),
+    "zero-area outline": (
+        lambda r: r["surfaces"][0].update(outline=[[0, 0], [1, 1], [2, 2]]) or r,
+        "surfaces[0].outline",
+        "no area",
+    ),
+    "three-coordinate vertex": (
+        lambda r: r["surfaces"][0].update(outline=[[0, 0, 1], [1, 0], [0, 1]]) or r,
+        "surfaces[0].outline[0]",
+        "",
+    ),
     "frequency outside table": (lambda r: emitter(r, frequency_mhz=0.1), "emitters[0].frequency_mhz", "0.1"),
     "power_w and power_dbm": (lambda r: emitter(r, power_dbm=46), "emitters[0]", "exactly one of power_w or power_dbm"),
-    "neither power": (lambda r: r["emitters"][0].pop("power_w") and r, "emitters[0]", "exactly one of power_w or power_dbm"),
+    "neither power": (
+        lambda r: r["emitters"][0].pop("power_w") and r,
+        "emitters[0]",
+        "exactly one of power_w or power_dbm",
+    ),
     "gain_dbi and gain_dbd": (lambda r: emitter(r, gain_dbd=15), "emitters[0]", "gain_dbi or gain_dbd"),
     "eirp with power": (lambda r: emitter(r, eirp_w=1000), "emitters[0]", "eirp_w replaces power"),
     "dish without diameter": (lambda r: r["emitters"][1].pop("diameter_m") and r, "emitters[1].diameter_m", "required"),
@@ -217,8 +238,13 @@ def test_init_writes_a_valid_template(tmp_path):
 # --- random records: valid, or refused with exit 2; never a traceback ----------------------
 
 _values = st.one_of(
-    st.none(), st.booleans(), st.integers(-10**6, 10**6), st.floats(allow_nan=True, allow_infinity=True),
-    st.text(max_size=8), st.lists(st.integers(-5, 5), max_size=3), st.dictionaries(st.text(max_size=3), st.integers(), max_size=2),
+    st.none(),
+    st.booleans(),
+    st.integers(-(10**6), 10**6),
+    st.floats(allow_nan=True, allow_infinity=True),
+    st.text(max_size=8),
+    st.lists(st.integers(-5, 5), max_size=3),
+    st.dictionaries(st.text(max_size=3), st.integers(), max_size=2),
 )
 _keys = st.sampled_from(sorted({k for e in BASE_RECORD["emitters"] for k in e} | {"typo_key", "kind", "outline"}))
 
@@ -229,7 +255,12 @@ def test_random_records_never_traceback(tmp_path, changes):
     import copy
 
     data = copy.deepcopy(BASE_RECORD)
-    targets = {"emitter": data["emitters"][0], "dish": data["emitters"][1], "site": data["site"], "surface": data["surfaces"][0]}
+    targets = {
+        "emitter": data["emitters"][0],
+        "dish": data["emitters"][1],
+        "site": data["site"],
+        "surface": data["surfaces"][0],
+    }
     for target, key, value in changes:
         targets[target][key] = value
     path = tmp_path / "random.json"

@@ -20,9 +20,8 @@ import time
 from pathlib import Path
 
 import pytest
-from pypdf import PdfReader
-
 from conftest import SAMPLE_SITES
+from pypdf import PdfReader
 
 pytestmark = [pytest.mark.slow, pytest.mark.skipif(sys.platform == "win32", reason="POSIX signals")]
 
@@ -31,8 +30,9 @@ SIGNALS = [signal.SIGINT, signal.SIGTERM, signal.SIGKILL]
 
 
 def start(*args: str | Path) -> subprocess.Popen:
-    return subprocess.Popen([*EXPOSURE, *map(str, args)], stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL,
-                            start_new_session=True)
+    return subprocess.Popen(
+        [*EXPOSURE, *map(str, args)], stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL, start_new_session=True
+    )
 
 
 def children_of(pid: int) -> set[int]:
@@ -96,7 +96,7 @@ def test_report_killed_at_random_moments(site, tmp_path, sig):
     rng = random.Random(sig.value)
     # a stale pair of another input first: the interrupted run must never mix with it
     other = site.parent / "other-input.toml"
-    other.write_text(site.read_text().replace('power_w = 40', 'power_w = 30', 1))
+    other.write_text(site.read_text().replace("power_w = 40", "power_w = 30", 1))
     assert subprocess.run([*EXPOSURE, "report", other, "-o", out / "r.pdf", "-q"], capture_output=True).returncode == 0
     for _ in range(4):
         process = start("report", site, "-o", out / "r.pdf", "-q")

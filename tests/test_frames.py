@@ -9,11 +9,26 @@ from hypothesis import strategies as st
 
 from exposure.antenna import Antenna
 from exposure.errors import InputError
-from exposure.models.frames import antenna_axes, direction_from_angles, local_coordinates, mechanical_downtilt_deg, spherical_angles, to_antenna_frame, to_site_direction
+from exposure.models.frames import (
+    antenna_axes,
+    direction_from_angles,
+    local_coordinates,
+    mechanical_downtilt_deg,
+    spherical_angles,
+    to_antenna_frame,
+    to_site_direction,
+)
 
 
 def _antenna(**kw) -> Antenna:
-    base = dict(id="T", kind="panel", frequency_mhz=1960.0, net_power_w=10.0, gain_dbi=15.0, position_m=(1.0, 2.0, 3.0))
+    base = {
+        "id": "T",
+        "kind": "panel",
+        "frequency_mhz": 1960.0,
+        "net_power_w": 10.0,
+        "gain_dbi": 15.0,
+        "position_m": (1.0, 2.0, 3.0),
+    }
     base.update(kw)
     return Antenna(**base)
 
@@ -84,8 +99,15 @@ def test_angles_round_trip(az, el, r):
 
 @settings(max_examples=60)
 @given(
-    azimuth=angles, tilt=tilts, turn=angles,
-    px=coords, py=coords, pz=coords, ax=coords, ay=coords, az=coords,
+    azimuth=angles,
+    tilt=tilts,
+    turn=angles,
+    px=coords,
+    py=coords,
+    pz=coords,
+    ax=coords,
+    ay=coords,
+    az=coords,
 )
 def test_rotating_antenna_and_points_together_changes_nothing(azimuth, tilt, turn, px, py, pz, ax, ay, az):
     """Law: a rotation of the whole scene about the vertical leaves antenna-frame coordinates alone."""

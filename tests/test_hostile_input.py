@@ -15,11 +15,11 @@ import stat
 import sys
 
 import pytest
+from conftest import BASE_RECORD
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 from typer.testing import CliRunner
 
-from conftest import BASE_RECORD
 from exposure.cli import app
 
 runner = CliRunner()
@@ -224,7 +224,9 @@ def test_absurd_quantities_are_refused(record, write_record, change, field):
     refused(run("validate", write_record(record)), f"emitters[0].{field}")
 
 
-@pytest.mark.parametrize("args", [["--eirp-w", "1e308"], ["--eirp-w", "5e-324"], ["--eirp-w", "10", "--gain-dbi", "200"]])
+@pytest.mark.parametrize(
+    "args", [["--eirp-w", "1e308"], ["--eirp-w", "5e-324"], ["--eirp-w", "10", "--gain-dbi", "200"]]
+)
 def test_screen_refuses_absurd_quantities(args):
     refused(run("screen", "--frequency-mhz", "1960", *args), args[-2])
 
@@ -232,10 +234,16 @@ def test_screen_refuses_absurd_quantities(args):
 # the property: mutated records never get a traceback ---------------------------------------------
 
 _EXTREMES = st.one_of(
-    st.none(), st.booleans(), st.integers(-10**30, 10**30), st.floats(allow_nan=True, allow_infinity=True),
-    st.floats(min_value=-1e-300, max_value=1e-300), st.text(max_size=30),
+    st.none(),
+    st.booleans(),
+    st.integers(-(10**30), 10**30),
+    st.floats(allow_nan=True, allow_infinity=True),
+    st.floats(min_value=-1e-300, max_value=1e-300),
+    st.text(max_size=30),
     st.text(alphabet=st.characters(codec="utf-8", categories=["Cc", "Cf", "Lo", "So"]), max_size=10),
-    st.just("x" * 5000), st.lists(st.floats(), max_size=3), st.dictionaries(st.text(max_size=4), st.integers(), max_size=2),
+    st.just("x" * 5000),
+    st.lists(st.floats(), max_size=3),
+    st.dictionaries(st.text(max_size=4), st.integers(), max_size=2),
 )
 
 

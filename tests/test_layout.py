@@ -84,14 +84,18 @@ def test_no_stage_imports_a_later_one():
             theirs = STAGE_OF.get(name)
             assert theirs is not None, f"{path}:{line} imports exposure.{name}, which has no stage"
             if theirs > mine:
-                wrong.append(f"{path.relative_to(PACKAGE.parent)}:{line} (stage {mine}) imports exposure.{name} "
-                             f"(stage {theirs})")
+                wrong.append(
+                    f"{path.relative_to(PACKAGE.parent)}:{line} (stage {mine}) imports exposure.{name} (stage {theirs})"
+                )
     assert not wrong, "\n".join(wrong)
 
 
 def test_no_module_is_over_the_size_limit():
-    long = {str(p.relative_to(PACKAGE.parent)): n for p in modules()
-            if (n := len(p.read_text(encoding="utf-8").splitlines())) > MAX_LINES}
+    long = {
+        str(p.relative_to(PACKAGE.parent)): n
+        for p in modules()
+        if (n := len(p.read_text(encoding="utf-8").splitlines())) > MAX_LINES
+    }
     assert not long, long
 
 
@@ -102,8 +106,13 @@ def test_physics_imports_no_input_or_output_library():
         if top_part(path) not in PHYSICS:
             continue
         for node in ast.walk(ast.parse(path.read_text(encoding="utf-8"))):
-            names = ([node.module] if isinstance(node, ast.ImportFrom) and node.module else
-                     [a.name for a in node.names] if isinstance(node, ast.Import) else [])
+            names = (
+                [node.module]
+                if isinstance(node, ast.ImportFrom) and node.module
+                else [a.name for a in node.names]
+                if isinstance(node, ast.Import)
+                else []
+            )
             wrong += [f"{path.name}: {n}" for n in names if n.split(".")[0] in IO_LIBRARIES]
     assert not wrong, wrong
 

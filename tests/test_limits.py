@@ -12,11 +12,12 @@ import math
 import tomllib
 from collections.abc import Callable
 from dataclasses import dataclass
+from itertools import pairwise
 from pathlib import Path
 
 import pytest
-
 from conftest import USER_HEADER, USER_S_FLAT, USER_TABLE, user_tier
+
 from exposure.errors import InputError, OutOfRangeError, UnknownKeyError
 from exposure.limits import (
     STANDARDS,
@@ -84,6 +85,7 @@ ICNIRP_2020 = {
         Row(2000, 300_000, None, None, const(10), const(30)),
     ],
 }
+
 
 # ICNIRP 1998, Tables 6 (occupational) and 7 (general public) (docs/references.md §5):
 # S_eq and averaging confirmed, E and H from memory. Averaging 6 min below 10 GHz,
@@ -237,15 +239,32 @@ def test_lookup_inside_each_band(key, tier, index, frequency):
         pytest.param("fcc", "occupational", 100, "e_field", 61.4, id="FCC Table 1 occ 100 MHz: 61.4 V/m"),
         pytest.param("fcc", "general_public", 100, "h_field", 0.073, id="FCC Table 1 GP 100 MHz: 0.073 A/m"),
         pytest.param(
-            "icnirp-2020", "general_public", 1800, "power_density", 9.0, id="ICNIRP 2020 Table 5 GP 1800 MHz: f/200 (from memory)"
+            "icnirp-2020",
+            "general_public",
+            1800,
+            "power_density",
+            9.0,
+            id="ICNIRP 2020 Table 5 GP 1800 MHz: f/200 (from memory)",
         ),
         pytest.param(
-            "icnirp-1998", "general_public", 900, "power_density", 4.5, id="ICNIRP 1998 Table 7 900 MHz: f/200 (confirmed)"
+            "icnirp-1998",
+            "general_public",
+            900,
+            "power_density",
+            4.5,
+            id="ICNIRP 1998 Table 7 900 MHz: f/200 (confirmed)",
         ),
         pytest.param(
-            "canada-sc6", "general_public", 6000, "power_density", 10.00, id="SC6 0.02619*6000^0.6834 = 10.00 (from memory)"
+            "canada-sc6",
+            "general_public",
+            6000,
+            "power_density",
+            10.00,
+            id="SC6 0.02619*6000^0.6834 = 10.00 (from memory)",
         ),
-        pytest.param("canada-sc6", "occupational", 6000, "power_density", 50.0, id="SC6 0.6455*sqrt(6000) = 50.0 (from memory)"),
+        pytest.param(
+            "canada-sc6", "occupational", 6000, "power_density", 50.0, id="SC6 0.6455*sqrt(6000) = 50.0 (from memory)"
+        ),
     ],
 )
 def test_known_values(key, tier, frequency, attr, expected):
@@ -335,9 +354,7 @@ def test_shared_edge_uses_the_stricter_band(key, tier, index, edge):
         s = _expected(row, "s", edge)
         return s if s is not None else _expected(row, "e", edge) ** 2 / Z0
 
-    assert limit.comparison_power_density_w_m2()[0] == pytest.approx(
-        min(comparison(left), comparison(right)), rel=1e-4
-    )
+    assert limit.comparison_power_density_w_m2()[0] == pytest.approx(min(comparison(left), comparison(right)), rel=1e-4)
 
 
 def test_shared_edge_examples():
@@ -377,7 +394,7 @@ def test_power_density_is_e_squared_over_z0(key, tier, index, frequency):
 
 def test_fcc_61_4_v_m_is_1_mw_cm2():
     """47 CFR § 1.1310 Table 1 consistency, as docs/references.md §1 states: 61.4²/3770 = 1.000."""
-    assert 61.4**2 / 3770 == pytest.approx(1.000, abs=5e-4)
+    assert pytest.approx(1.000, abs=5e-4) == 61.4**2 / 3770
     limit = load_standard("fcc").at(100)["occupational"]
     assert limit.e_field.value**2 / (10 * Z0) == pytest.approx(limit.power_density.value / MW_CM2, rel=2e-3)
 
@@ -412,7 +429,7 @@ def test_frequency_axes_monotone_and_contiguous(key):
     for tier in TIERS:
         bands = table.bands[tier]
         assert all(b.f_min_mhz < b.f_max_mhz for b in bands)
-        assert all(a.f_max_mhz == b.f_min_mhz for a, b in zip(bands, bands[1:]))
+        assert all(a.f_max_mhz == b.f_min_mhz for a, b in pairwise(bands))
         assert (bands[0].f_min_mhz, bands[-1].f_max_mhz) == (table.f_min_mhz, table.f_max_mhz)
 
 
@@ -534,7 +551,6 @@ def test_resolve(tmp_path):
 # A user's own table
 
 
-
 def _write(tmp_path: Path, text: str, name: str = "local.toml") -> Path:
     path = tmp_path / name
     path.write_text(text, encoding="utf-8")
@@ -643,7 +659,7 @@ GP_BANDS = "tiers.general_public.bands"
             id="unknown-tier",
         ),
         pytest.param(
-            lambda t: t.replace('f_min_mhz = 100\n', 'f_min_mhz = 200\n', 1),
+            lambda t: t.replace("f_min_mhz = 100\n", "f_min_mhz = 200\n", 1),
             "tiers.occupational.bands: cover 100–6000 MHz but general_public covers 200–6000 MHz",
             id="tiers-cover-different-ranges",
         ),
@@ -708,6 +724,6 @@ def test_missing_limits_file(tmp_path):
 
 def test_not_utf8(tmp_path):
     path = tmp_path / "latin1.toml"
-    path.write_bytes(USER_TABLE.encode("utf-8").replace("²".encode("utf-8"), b"\xb2"))  # Latin-1 ²
+    path.write_bytes(USER_TABLE.encode("utf-8").replace("²".encode(), b"\xb2"))  # Latin-1 ²
     with pytest.raises(InputError, match="not UTF-8"):
         load_limits_file(path)

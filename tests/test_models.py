@@ -10,32 +10,76 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from exposure.models import aperture, frames, synthetic
 from exposure.antenna import Antenna, PatternCuts
-from exposure.models.cylindrical import crossover_distance_m, cylindrical_power_density
 from exposure.errors import InputError, UnknownKeyError
+from exposure.models import (
+    CHUNK_POINTS,
+    MODELS,
+    REFLECTION_FACTORS,
+    aperture,
+    beam_direction,
+    boresight_distance_to_limit,
+    frames,
+    induction_margin,
+    minimum_distance_m,
+    model_for,
+    power_density,
+    power_density_along_beam,
+    synthetic,
+)
+from exposure.models.cylindrical import crossover_distance_m, cylindrical_power_density
 from exposure.models.farfield import spherical_power_density
-from exposure.models import CHUNK_POINTS, MODELS, REFLECTION_FACTORS, beam_direction, boresight_distance_to_limit, induction_margin, minimum_distance_m, model_for, power_density, power_density_along_beam
 from exposure.models.frames import local_coordinates
 from exposure.patterns import pattern_efficiency, pattern_for
 
 PANEL = Antenna(
-    id="A1", kind="panel", frequency_mhz=1960.0, net_power_w=71.3, gain_dbi=17.5, position_m=(0.0, 0.0, 0.0),
-    h_beamwidth_deg=65.0, v_beamwidth_deg=6.8, front_to_back_db=25.0, length_m=1.9,
+    id="A1",
+    kind="panel",
+    frequency_mhz=1960.0,
+    net_power_w=71.3,
+    gain_dbi=17.5,
+    position_m=(0.0, 0.0, 0.0),
+    h_beamwidth_deg=65.0,
+    v_beamwidth_deg=6.8,
+    front_to_back_db=25.0,
+    length_m=1.9,
 )
 OMNI = Antenna(
-    id="O1", kind="omni", frequency_mhz=850.0, net_power_w=50.0, gain_dbi=10.0, position_m=(0.0, 0.0, 0.0),
-    v_beamwidth_deg=14.0, length_m=1.2,
+    id="O1",
+    kind="omni",
+    frequency_mhz=850.0,
+    net_power_w=50.0,
+    gain_dbi=10.0,
+    position_m=(0.0, 0.0, 0.0),
+    v_beamwidth_deg=14.0,
+    length_m=1.2,
 )
 ARRAY = Antenna(
-    id="M1", kind="array", frequency_mhz=3500.0, net_power_w=50.0, gain_dbi=24.0, position_m=(0.0, 0.0, 0.0),
-    h_beamwidth_deg=12.0, v_beamwidth_deg=8.0, h_scan_deg=90.0, v_scan_deg=10.0, front_to_back_db=30.0, length_m=0.7,
+    id="M1",
+    kind="array",
+    frequency_mhz=3500.0,
+    net_power_w=50.0,
+    gain_dbi=24.0,
+    position_m=(0.0, 0.0, 0.0),
+    h_beamwidth_deg=12.0,
+    v_beamwidth_deg=8.0,
+    h_scan_deg=90.0,
+    v_scan_deg=10.0,
+    front_to_back_db=30.0,
+    length_m=0.7,
     elec_tilt_deg=3.0,
 )
 DISH = Antenna(
-    id="D1", kind="dish", frequency_mhz=6000.0, net_power_w=100.0, gain_dbi=10 * math.log10(0.55 * (math.pi * 3.0 / (299.792458 / 6000)) ** 2),
-    position_m=(0.0, 0.0, 0.0), diameter_m=3.0, aperture_efficiency=0.55,
+    id="D1",
+    kind="dish",
+    frequency_mhz=6000.0,
+    net_power_w=100.0,
+    gain_dbi=10 * math.log10(0.55 * (math.pi * 3.0 / (299.792458 / 6000)) ** 2),
+    position_m=(0.0, 0.0, 0.0),
+    diameter_m=3.0,
+    aperture_efficiency=0.55,
 )
+
 
 def _cuts() -> PatternCuts:
     """Invented cuts: 3GPP-like horizontal 65 deg, vertical 7 deg tilted 2 deg, full circle."""
@@ -87,7 +131,9 @@ def test_cylindrical_closed_forms_and_crossover():
     r_c = crossover_distance_m(g, 65.0, 1.9)
     assert r_c == pytest.approx(g * 65 * 1.9 / 720)
     # at R_c the two forms are equal: continuity of the model
-    assert cylindrical_power_density(PANEL.net_power_w, r_c, 1.9, 65.0) == pytest.approx(PANEL.eirp_w / (4 * math.pi * r_c**2))
+    assert cylindrical_power_density(PANEL.net_power_w, r_c, 1.9, 65.0) == pytest.approx(
+        PANEL.eirp_w / (4 * math.pi * r_c**2)
+    )
 
 
 def test_cylindrical_model_is_oet65_inside_rc_and_far_field_beyond():
@@ -189,7 +235,9 @@ def test_synthetic_never_exceeds_spherical_in_the_boresight_plane(antenna):
     r = np.geomspace(0.2, 300.0, 4000)
     az = rng.uniform(-np.pi, np.pi, r.size)
     pts = np.stack([r * np.sin(az), r * np.cos(az), np.zeros_like(r)], axis=-1)
-    assert np.all(power_density(antenna, pts, model="synthetic") <= power_density(antenna, pts, model="spherical") * (1 + 1e-9))
+    assert np.all(
+        power_density(antenna, pts, model="synthetic") <= power_density(antenna, pts, model="spherical") * (1 + 1e-9)
+    )
 
 
 def test_auto_is_synthetic_capped_at_the_peak_gain_spherical_value():
@@ -252,8 +300,16 @@ def test_discrete_sub_sources_converge_to_the_continuous_aperture(antenna):
     assert synthetic.source_count(length, lam, pattern) >= math.ceil(2 * length / lam)  # never sparser than lambda/2
 
 
-@pytest.mark.parametrize("antenna", [replace(PANEL, position_m=(3.0, 4.0, 5.0), azimuth_deg=37.0, mech_tilt_deg=5.0, elec_tilt_deg=3.0), ARRAY, OMNI, TABULATED],
-                         ids=["tilted panel", "array", "omni", "tabulated (discrete sum)"])
+@pytest.mark.parametrize(
+    "antenna",
+    [
+        replace(PANEL, position_m=(3.0, 4.0, 5.0), azimuth_deg=37.0, mech_tilt_deg=5.0, elec_tilt_deg=3.0),
+        ARRAY,
+        OMNI,
+        TABULATED,
+    ],
+    ids=["tilted panel", "array", "omni", "tabulated (discrete sum)"],
+)
 def test_power_through_a_sphere_is_the_power_radiated(antenna):
     """Energy conservation: the flux through a sphere around the antenna (at 10 L, inside the
     far-field distance, so the sub-sources count) is P x pattern efficiency."""
@@ -262,7 +318,9 @@ def test_power_through_a_sphere_is_the_power_radiated(antenna):
     el = np.radians(-90 + (np.arange(n_el) + 0.5) * 180 / n_el)
     az = np.radians((np.arange(n_az) + 0.5) * 360 / n_az)
     e, a = np.meshgrid(el, az, indexing="ij")
-    pts = np.array(antenna.position_m) + radius * np.stack([np.cos(e) * np.sin(a), np.cos(e) * np.cos(a), np.sin(e)], -1)
+    pts = np.array(antenna.position_m) + radius * np.stack(
+        [np.cos(e) * np.sin(a), np.cos(e) * np.cos(a), np.sin(e)], -1
+    )
     s = power_density(antenna, pts, model="synthetic")
     flux = np.sum(s * np.cos(e)) * (math.pi / n_el) * (2 * math.pi / n_az) * radius**2
     # the pattern the models use (an envelope since the full-wave issue), not the nominal one
@@ -289,7 +347,9 @@ def test_power_scales_linearly(factor, which):
     pts = np.random.default_rng(which).uniform(-30, 30, size=(200, 3))
     scaled = replace(antenna, net_power_w=antenna.net_power_w * factor)
     for model in ("auto", "spherical"):
-        np.testing.assert_allclose(power_density(scaled, pts, model=model), factor * power_density(antenna, pts, model=model), rtol=1e-10)
+        np.testing.assert_allclose(
+            power_density(scaled, pts, model=model), factor * power_density(antenna, pts, model=model), rtol=1e-10
+        )
 
 
 @settings(max_examples=25, deadline=None)
@@ -299,8 +359,12 @@ def test_rotating_emitter_and_points_together_changes_nothing(turn, which, shift
     antenna = ALL[which]
     pts = np.random.default_rng(7).uniform(-20, 20, size=(300, 3))
     b = math.radians(turn)
-    rot = np.array([[math.cos(b), math.sin(b), 0], [-math.sin(b), math.cos(b), 0], [0, 0, 1]])  # clockwise seen from above
-    moved = replace(antenna, azimuth_deg=antenna.azimuth_deg + turn, position_m=tuple(rot @ np.array(antenna.position_m) + shift))
+    rot = np.array(
+        [[math.cos(b), math.sin(b), 0], [-math.sin(b), math.cos(b), 0], [0, 0, 1]]
+    )  # clockwise seen from above
+    moved = replace(
+        antenna, azimuth_deg=antenna.azimuth_deg + turn, position_m=tuple(rot @ np.array(antenna.position_m) + shift)
+    )
     for model in ("auto", "spherical"):
         np.testing.assert_allclose(
             power_density(moved, pts @ rot.T + shift, model=model), power_density(antenna, pts, model=model), rtol=1e-6
@@ -320,7 +384,9 @@ kinds = st.sampled_from(range(len(ALL)))
 )
 def test_predictions_are_finite_and_non_negative(which, azimuth, mech, elec, points):
     """Law: power density is finite and >= 0 everywhere, a point at the source included."""
-    antenna = replace(ALL[which], azimuth_deg=azimuth, mech_tilt_deg=mech, elec_tilt_deg=elec if ALL[which].kind != "dish" else 0.0)
+    antenna = replace(
+        ALL[which], azimuth_deg=azimuth, mech_tilt_deg=mech, elec_tilt_deg=elec if ALL[which].kind != "dish" else 0.0
+    )
     pts = np.vstack([np.array(points, dtype=float), np.array(antenna.position_m)])
     for model in MODELS:
         try:
@@ -338,7 +404,9 @@ def test_model_for_resolves_auto_and_checks_needs():
     assert model_for(PANEL) == "synthetic" and model_for(OMNI) == "synthetic" and model_for(ARRAY) == "synthetic"
     assert model_for(DISH) == "aperture"
     assert model_for(replace(PANEL, length_m=None)) == "spherical"
-    with pytest.raises(UnknownKeyError, match=r"unknown model 'cyl'; choose one of: auto, spherical, cylindrical, synthetic, aperture"):
+    with pytest.raises(
+        UnknownKeyError, match=r"unknown model 'cyl'; choose one of: auto, spherical, cylindrical, synthetic, aperture"
+    ):
         power_density(PANEL, [0.0, 1.0, 0.0], model="cyl")
     with pytest.raises(InputError, match=r"emitter A1: the cylindrical model needs length_m"):
         power_density(replace(PANEL, length_m=None), [0.0, 1.0, 0.0], model="cylindrical")
@@ -373,11 +441,15 @@ def test_distance_to_limit_matches_the_spherical_closed_form_and_follows_the_til
     """OET 65 far field: R = sqrt(F EIRP / (4 pi S_L)), measured along the tilted main beam."""
     for reflection, factor in REFLECTION_FACTORS.items():
         expected = math.sqrt(factor * PANEL.eirp_w / (4 * math.pi * 10.0))
-        assert boresight_distance_to_limit(PANEL, 10.0, model="spherical", reflection=reflection) == pytest.approx(expected, rel=1e-3)
+        assert boresight_distance_to_limit(PANEL, 10.0, model="spherical", reflection=reflection) == pytest.approx(
+            expected, rel=1e-3
+        )
     tilted = replace(PANEL, mech_tilt_deg=5.0, elec_tilt_deg=4.0, azimuth_deg=120.0)
     direction = beam_direction(tilted)
     assert direction[2] == pytest.approx(-math.sin(math.radians(9.0)))
-    assert boresight_distance_to_limit(tilted, 10.0, model="spherical") == pytest.approx(math.sqrt(PANEL.eirp_w / (40 * math.pi)), rel=1e-3)
+    assert boresight_distance_to_limit(tilted, 10.0, model="spherical") == pytest.approx(
+        math.sqrt(PANEL.eirp_w / (40 * math.pi)), rel=1e-3
+    )
     assert boresight_distance_to_limit(PANEL, 1e9, model="auto") == 0.0  # never exceeded
     d = boresight_distance_to_limit(tilted, 10.0)
     assert power_density_along_beam(tilted, d) <= 10.0 < power_density_along_beam(tilted, d * 0.999)

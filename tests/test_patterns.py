@@ -11,7 +11,23 @@ from hypothesis import strategies as st
 
 from exposure.antenna import Antenna, PatternCuts
 from exposure.errors import InputError
-from exposure.patterns import DishPattern, OmniPattern, SectorPattern, TabulatedPattern, array_envelope_gain, check_gain_beamwidths, directivity_dbi, f699_gain, f699_gain_dbi, omni_gain, pattern_efficiency, pattern_for, sector_gain, sphere_integral, tabulated_gain
+from exposure.patterns import (
+    DishPattern,
+    OmniPattern,
+    SectorPattern,
+    TabulatedPattern,
+    array_envelope_gain,
+    check_gain_beamwidths,
+    directivity_dbi,
+    f699_gain,
+    f699_gain_dbi,
+    omni_gain,
+    pattern_efficiency,
+    pattern_for,
+    sector_gain,
+    sphere_integral,
+    tabulated_gain,
+)
 from exposure.site.pattern_file import read_pattern_csv
 
 
@@ -20,10 +36,18 @@ def att(g):
 
 
 def _panel(**kw) -> Antenna:
-    base = dict(
-        id="A1", kind="panel", frequency_mhz=1960.0, net_power_w=40.0, gain_dbi=17.5, position_m=(0.0, 0.0, 0.0),
-        h_beamwidth_deg=65.0, v_beamwidth_deg=6.8, front_to_back_db=25.0, length_m=1.9,
-    )
+    base = {
+        "id": "A1",
+        "kind": "panel",
+        "frequency_mhz": 1960.0,
+        "net_power_w": 40.0,
+        "gain_dbi": 17.5,
+        "position_m": (0.0, 0.0, 0.0),
+        "h_beamwidth_deg": 65.0,
+        "v_beamwidth_deg": 6.8,
+        "front_to_back_db": 25.0,
+        "length_m": 1.9,
+    }
     base.update(kw)
     return Antenna(**base)
 
@@ -34,8 +58,12 @@ def _panel(**kw) -> Antenna:
 @pytest.mark.parametrize("tilt", [0.0, 6.0])
 def test_sector_is_3_db_down_at_half_the_beamwidths(tilt):
     """3GPP TR 38.901 Table 7.3-1 form: 12 (x / x_3dB)^2 is exactly 3 dB at x = x_3dB / 2."""
-    g = sector_gain([32.5, -32.5, 0.0, 0.0, 0.0], [tilt, tilt, tilt + 3.4, tilt - 3.4, tilt], 65.0, 6.8, elec_tilt_deg=tilt)
-    np.testing.assert_allclose(att(g), [3.0, 3.0, 3.0, 3.0, 0.0], atol=1e-5)  # exponentials in single precision: 4e-6 dB
+    g = sector_gain(
+        [32.5, -32.5, 0.0, 0.0, 0.0], [tilt, tilt, tilt + 3.4, tilt - 3.4, tilt], 65.0, 6.8, elec_tilt_deg=tilt
+    )
+    np.testing.assert_allclose(
+        att(g), [3.0, 3.0, 3.0, 3.0, 0.0], atol=1e-5
+    )  # exponentials in single precision: 4e-6 dB
 
 
 def test_sector_matches_the_3gpp_formula():
@@ -95,13 +123,22 @@ def test_omni_is_uniform_in_azimuth_with_3gpp_vertical_cut():
     p = OmniPattern(10.0, 20.0, elec_tilt_deg=2.0)
     az = np.linspace(-180, 180, 37)
     np.testing.assert_allclose(p.gain(az, 7.0), p.gain(0.0, 7.0))
-    np.testing.assert_allclose(att(omni_gain([2.0, 7.0, -3.0, 60.0], 10.0, 20.0, 2.0)), [0.0, 3.0, 3.0, 20.0], atol=1e-5)
+    np.testing.assert_allclose(
+        att(omni_gain([2.0, 7.0, -3.0, 60.0], 10.0, 20.0, 2.0)), [0.0, 3.0, 3.0, 20.0], atol=1e-5
+    )
 
 
 def test_array_envelope_is_flat_over_the_scan_and_rolls_off_with_the_beam():
     """Envelope of a steered beam (IEC 62232 practice, from memory): 0 dB inside the scan
     ranges, the beam's own -3 dB at the scan edge plus half a beamwidth, back at FtB."""
-    kw = dict(h_beamwidth_deg=20.0, v_beamwidth_deg=8.0, h_scan_deg=90.0, v_scan_deg=12.0, front_to_back_db=30.0, elec_tilt_deg=3.0)
+    kw = {
+        "h_beamwidth_deg": 20.0,
+        "v_beamwidth_deg": 8.0,
+        "h_scan_deg": 90.0,
+        "v_scan_deg": 12.0,
+        "front_to_back_db": 30.0,
+        "elec_tilt_deg": 3.0,
+    }
     az = np.array([0.0, 45.0, -45.0, 55.0, 0.0, 0.0, 0.0, 180.0])
     el = np.array([3.0, 3.0, 9.0, 3.0, 13.0, -7.0, -3.0, 3.0])
     np.testing.assert_allclose(att(array_envelope_gain(az, el, **kw)), [0, 0, 0, 3, 3, 3, 0, 30], atol=1e-5)
@@ -165,8 +202,8 @@ def _write(tmp_path, text: str):
 
 def _csv_from(cuts: PatternCuts) -> str:
     rows = ["plane,angle_deg,attenuation_db", "# a comment"]
-    rows += [f"h,{a:g},{v:.6f}" for a, v in zip(cuts.h_angle_deg, cuts.h_attenuation_db)]
-    rows += [f"v,{a:g},{v:.6f}" for a, v in zip(cuts.v_angle_deg, cuts.v_attenuation_db)]
+    rows += [f"h,{a:g},{v:.6f}" for a, v in zip(cuts.h_angle_deg, cuts.h_attenuation_db, strict=True)]
+    rows += [f"v,{a:g},{v:.6f}" for a, v in zip(cuts.v_angle_deg, cuts.v_attenuation_db, strict=True)]
     return "\n".join(rows) + "\n"
 
 
@@ -189,8 +226,14 @@ def test_read_pattern_csv_round_trip(tmp_path):
         ("plane,angle_deg,attenuation_db\nh,zero,0\n", r"line 2: angle_deg and attenuation_db must be numbers"),
         ("plane,angle_deg,attenuation_db\n\nh,0,-1\n", r"line 3: attenuation_db -1.0 must be finite and >= 0"),
         ("plane,angle_deg,attenuation_db\nh,0,0,9\n", r"line 2: expected 3 fields"),
-        ("plane,angle_deg,attenuation_db\nh,0,0\nh,90,10\nh,180,20\nv,0,0\nv,10,3\nv,20,10\n", r"plane v: the cut must cover -90..90"),
-        ("plane,angle_deg,attenuation_db\nh,0,0\nh,10,1\nh,20,3\nv,-90,10\nv,0,0\nv,90,10\n", r"plane h: the cut must go all round"),
+        (
+            "plane,angle_deg,attenuation_db\nh,0,0\nh,90,10\nh,180,20\nv,0,0\nv,10,3\nv,20,10\n",
+            r"plane v: the cut must cover -90..90",
+        ),
+        (
+            "plane,angle_deg,attenuation_db\nh,0,0\nh,10,1\nh,20,3\nv,-90,10\nv,0,0\nv,90,10\n",
+            r"plane h: the cut must go all round",
+        ),
         ("", r"empty pattern file"),
     ],
 )
@@ -268,8 +311,15 @@ def test_gain_and_beamwidths_that_cannot_both_be_true_are_flagged():
 
 def test_dish_gain_is_checked_against_oet65():
     """OET 65: G = eta (pi D / lambda)^2; 42.9 dBi for 3 m at 6 GHz, eta 0.55."""
-    dish = Antenna(id="D", kind="dish", frequency_mhz=6000.0, net_power_w=100.0, gain_dbi=42.9,
-                   position_m=(0.0, 0.0, 0.0), diameter_m=3.0)
+    dish = Antenna(
+        id="D",
+        kind="dish",
+        frequency_mhz=6000.0,
+        net_power_w=100.0,
+        gain_dbi=42.9,
+        position_m=(0.0, 0.0, 0.0),
+        diameter_m=3.0,
+    )
     assert check_gain_beamwidths(dish) is None
     assert "differs" in check_gain_beamwidths(Antenna(**{**dish.__dict__, "gain_dbi": 38.0}))
 

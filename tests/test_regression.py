@@ -14,9 +14,9 @@ from __future__ import annotations
 import json
 
 import pytest
+from conftest import REPO, SAMPLE_SITES
 from typer.testing import CliRunner
 
-from conftest import REPO, SAMPLE_SITES
 from exposure.cli import app
 
 DATA = REPO / "tests" / "data" / "regression"

@@ -16,16 +16,15 @@ import re
 from dataclasses import dataclass
 
 import pytest
+from conftest import BASE_RECORD, SAMPLE_SITES
 from pypdf import PdfReader
 from typer.testing import CliRunner
 
 from exposure.assessment import assess
 from exposure.cli import app
-from exposure.site import load_site
 from exposure.report import render_pdf, write_report
 from exposure.report import text as fmt
-
-from conftest import BASE_RECORD, SAMPLE_SITES
+from exposure.site import load_site
 
 DATE = dt.date(2024, 5, 1)
 COARSE_GRID_M = {"rooftop-larkspur.toml": 1.0, "monopole-willow-park.toml": 2.0}
@@ -61,13 +60,31 @@ def public_exceedance_record() -> dict:
     record = copy.deepcopy(BASE_RECORD)
     record["site"] = {"id": "roof-east", "name": ESCAPED_NAME, "standard": "fcc", "grid_m": 0.5}
     record["surfaces"] = [
-        {"name": "Terrace <i>T</i>", "access": "public", "elevation_m": 0.0,
-         "outline": [[0, 0], [16, 0], [16, 10], [0, 10]]},
-        {"name": "Plant area", "access": "occupational", "elevation_m": 0.0,
-         "outline": [[0, 10], [16, 10], [16, 14], [0, 14]]},
+        {
+            "name": "Terrace <i>T</i>",
+            "access": "public",
+            "elevation_m": 0.0,
+            "outline": [[0, 0], [16, 0], [16, 10], [0, 10]],
+        },
+        {
+            "name": "Plant area",
+            "access": "occupational",
+            "elevation_m": 0.0,
+            "outline": [[0, 10], [16, 10], [16, 14], [0, 14]],
+        },
     ]
-    panel = {"kind": "panel", "frequency_mhz": 1960, "power_w": 40, "ports": 2, "gain_dbi": 17.5,
-             "z_m": 2.2, "elec_tilt_deg": 2, "h_beamwidth_deg": 65, "v_beamwidth_deg": 7, "length_m": 1.4}
+    panel = {
+        "kind": "panel",
+        "frequency_mhz": 1960,
+        "power_w": 40,
+        "ports": 2,
+        "gain_dbi": 17.5,
+        "z_m": 2.2,
+        "elec_tilt_deg": 2,
+        "h_beamwidth_deg": 65,
+        "v_beamwidth_deg": 7,
+        "length_m": 1.4,
+    }
     record["emitters"] = [
         {**panel, "id": "P1", "operator": "Tenant <A> & Co", "x_m": 5.0, "y_m": 11.0, "azimuth_deg": 180},
         {**panel, "id": "P2", "operator": "Tenant B", "x_m": 10.0, "y_m": 11.0, "azimuth_deg": 170},
@@ -161,12 +178,18 @@ def test_maps_are_embedded_at_print_resolution(sample):
 def test_surface_figures_match_json(sample):
     text = sample.text
     for s in sample.result.to_json()["surfaces"]:
-        row = " ".join([
-            s["name"], fmt.ACCESS_SHORT[s["access"]], f"{s['elevation_m']:g}",
-            fmt.percent(s["max_ratio"]["general_public"]), fmt.percent(s["max_ratio"]["occupational"]),
-            fmt.area(s["area_above_limit_m2"]["general_public"]), fmt.area(s["area_above_limit_m2"]["occupational"]),
-            fmt.area(s["area_m2"]),
-        ])
+        row = " ".join(
+            [
+                s["name"],
+                fmt.ACCESS_SHORT[s["access"]],
+                f"{s['elevation_m']:g}",
+                fmt.percent(s["max_ratio"]["general_public"]),
+                fmt.percent(s["max_ratio"]["occupational"]),
+                fmt.area(s["area_above_limit_m2"]["general_public"]),
+                fmt.area(s["area_above_limit_m2"]["occupational"]),
+                fmt.area(s["area_m2"]),
+            ]
+        )
         assert row in text, row
         tier = s["governing_tier"]
         if tier:  # the at-a-glance table: max % of the limit that applies, with its tier
@@ -213,8 +236,19 @@ def test_map_caption_states_the_height_rule(sample):
 
 
 def test_cautions_and_signs(sample):
-    for word in ("RF burns", "Medical implants", "Lockout", "Limits of prediction", "licensed or qualified",
-                 "NOTICE", "CAUTION", "WARNING", "IEEE C95.7", "Personal RF monitors", "Training"):
+    for word in (
+        "RF burns",
+        "Medical implants",
+        "Lockout",
+        "Limits of prediction",
+        "licensed or qualified",
+        "NOTICE",
+        "CAUTION",
+        "WARNING",
+        "IEEE C95.7",
+        "Personal RF monitors",
+        "Training",
+    ):
         assert word in sample.text, word
 
 
@@ -256,7 +290,7 @@ def test_same_input_gives_same_pdf(exceedance):
 def test_failure_while_rendering_leaves_no_file(exceedance, tmp_path, monkeypatch):
     import exposure.report.section_figure
 
-    site, result = exceedance.site, exceedance.result
+    result = exceedance.result
 
     def broken(*args, **kwargs):
         raise RuntimeError("renderer failed half-way")
@@ -272,7 +306,7 @@ def test_failure_while_rendering_leaves_no_file(exceedance, tmp_path, monkeypatc
 def test_failure_while_writing_keeps_the_old_file(exceedance, tmp_path, monkeypatch):
     import os
 
-    site, result = exceedance.site, exceedance.result
+    result = exceedance.result
     target = tmp_path / "site.pdf"
     target.write_bytes(b"old report")
 

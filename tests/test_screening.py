@@ -34,7 +34,9 @@ def fcc_general_population_w_m2(f_mhz: float) -> float:
     return 10.0 * mw_cm2  # 1 mW/cm2 = 10 W/m2
 
 
-@pytest.mark.parametrize("f_mhz", [0.5, 1.0, 2.0, 10.0, 29.0, 50.0, 150.0, 299.0, 450.0, 900.0, 1400.0, 1960.0, 28000.0])
+@pytest.mark.parametrize(
+    "f_mhz", [0.5, 1.0, 2.0, 10.0, 29.0, 50.0, 150.0, 299.0, 450.0, 900.0, 1400.0, 1960.0, 28000.0]
+)
 @pytest.mark.parametrize("multiple", [1.0, 3.0, 20.0])
 def test_erp_threshold_is_the_limit_reached_by_the_spherical_model(f_mhz, multiple):
     """docs/references.md § 2 derived check: each row of Table 1 of (i)(C) is the general-population
@@ -43,8 +45,16 @@ def test_erp_threshold_is_the_limit_reached_by_the_spherical_model(f_mhz, multip
     R is 1, 3 and 20 m, or that many times lambda/2pi where the table starts farther out."""
     distance_m = multiple * max(1.0, 299.792458 / f_mhz / (2 * math.pi))
     erp = mpe_erp_threshold_w(f_mhz, distance_m)
-    isotropic = Antenna(id="X", kind="omni", frequency_mhz=f_mhz, net_power_w=1.64 * erp, gain_dbi=0.0,
-                        position_m=(0.0, 0.0, 0.0), v_beamwidth_deg=180.0, sidelobe_floor_db=0.0)
+    isotropic = Antenna(
+        id="X",
+        kind="omni",
+        frequency_mhz=f_mhz,
+        net_power_w=1.64 * erp,
+        gain_dbi=0.0,
+        position_m=(0.0, 0.0, 0.0),
+        v_beamwidth_deg=180.0,
+        sidelobe_floor_db=0.0,
+    )
     s = power_density(isotropic, [0.0, distance_m, 0.0], model="spherical", reflection="full")
     assert s == pytest.approx(fcc_general_population_w_m2(f_mhz), rel=3e-3)
 

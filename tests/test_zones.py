@@ -17,10 +17,10 @@ import shapely
 from typer.testing import CliRunner
 
 from exposure.assessment import assess
+from exposure.assessment.zones import SIGN_WORDS, category_of, category_thresholds_w_m2
 from exposure.cli import app
 from exposure.limits import load_standard
 from exposure.site import load_site
-from exposure.assessment.zones import SIGN_WORDS, category_of, category_thresholds_w_m2
 
 runner = CliRunner()
 
@@ -28,8 +28,14 @@ runner = CliRunner()
 def site(emitters, surfaces, access_points=(), **info):
     return {
         "schema_version": 1,
-        "site": {"id": "zones", "name": "Zone test (invented)", "standard": "fcc", "ground_reflection": "none",
-                 "grid_m": 0.25, **info},
+        "site": {
+            "id": "zones",
+            "name": "Zone test (invented)",
+            "standard": "fcc",
+            "ground_reflection": "none",
+            "grid_m": 0.25,
+            **info,
+        },
         "surfaces": surfaces,
         "emitters": emitters,
         "access_points": list(access_points),
@@ -37,9 +43,21 @@ def site(emitters, surfaces, access_points=(), **info):
 
 
 def panel(ident, operator, x, y, azimuth, eirp=400.0, z=1.6):
-    return {"id": ident, "operator": operator, "kind": "panel", "frequency_mhz": 2000, "eirp_w": eirp,
-            "x_m": x, "y_m": y, "z_m": z, "azimuth_deg": azimuth, "h_beamwidth_deg": 65, "v_beamwidth_deg": 12,
-            "front_to_back_db": 25, "length_m": 0.5}
+    return {
+        "id": ident,
+        "operator": operator,
+        "kind": "panel",
+        "frequency_mhz": 2000,
+        "eirp_w": eirp,
+        "x_m": x,
+        "y_m": y,
+        "z_m": z,
+        "azimuth_deg": azimuth,
+        "h_beamwidth_deg": 65,
+        "v_beamwidth_deg": 12,
+        "front_to_back_db": 25,
+        "length_m": 0.5,
+    }
 
 
 @pytest.fixture
@@ -74,8 +92,14 @@ def test_each_zone_names_only_the_operators_at_five_percent_inside_it(load):
     gain attenuated by the 3GPP-tangent skirt's 9 dB at 65° (hand calculation: 400 W EIRP, 35 m,
     10 W/m² → 400/(4π·35²)/10 × 10^(-0.9) = 0.33 %), far below 5 %; and the other way round."""
     surfaces = [{"name": "Roof", "access": "public", "outline": [[0, 0], [50, 0], [50, 20], [0, 20]]}]
-    result = assess(load(site([panel("P1", "Operator A (invented)", 5, 1, 0), panel("P2", "Operator B (invented)", 45, 1, 0)],
-                              surfaces)))
+    result = assess(
+        load(
+            site(
+                [panel("P1", "Operator A (invented)", 5, 1, 0), panel("P2", "Operator B (invented)", 45, 1, 0)],
+                surfaces,
+            )
+        )
+    )
     public = [z for z in result.zones if z.category == 2]
     assert len(public) == 2
     west, east = sorted(public, key=lambda z: z.max_at_m[0])
@@ -115,14 +139,29 @@ def test_zone_json_and_the_map_show_three_boundaries(load, tmp_path):
     out = json.loads(runner.invoke(app, ["assess", str(path), "--json"]).stdout)
     assert {z["category"] for z in out["zones"]} == {2, 3, 4}
     for zone in out["zones"]:
-        assert {"surface", "category", "area_m2", "polygon_m", "max_ratio", "max_at_m", "responsible_emitters",
-                "responsible_operators", "power_down"} <= set(zone)
+        assert {
+            "surface",
+            "category",
+            "area_m2",
+            "polygon_m",
+            "max_ratio",
+            "max_at_m",
+            "responsible_emitters",
+            "responsible_operators",
+            "power_down",
+        } <= set(zone)
     assert {s["word"] for s in out["signs"]} == {"NOTICE", "CAUTION", "WARNING"}
     result = runner.invoke(app, ["report", str(path), "-o", str(tmp_path / "three.pdf"), "-q"])
     assert result.exit_code == 0, result.output
     text = " ".join(page.extract_text() for page in PdfReader(tmp_path / "three.pdf").pages)
-    for phrase in ("100 % general public line (black) drawn on", "100 % occupational line (red) drawn on",
-                   "10 × occupational line (red, dash-dot) drawn on", "CAUTION", "WARNING", "NOTICE"):
+    for phrase in (
+        "100 % general public line (black) drawn on",
+        "100 % occupational line (red) drawn on",
+        "10 × occupational line (red, dash-dot) drawn on",
+        "CAUTION",
+        "WARNING",
+        "NOTICE",
+    ):
         assert phrase in " ".join(text.split()), phrase
 
 
@@ -134,7 +173,9 @@ def test_a_penthouse_hole_has_no_grid_point_maximum_or_zone(load):
     hot spot or zone inside the hole; the surface's area excludes it (shapely's area as the
     reference)."""
     hole = [[8, 3], [12, 3], [12, 7], [8, 7]]
-    surfaces = [{"name": "Roof", "access": "occupational", "outline": [[0, 0], [20, 0], [20, 20], [0, 20]], "holes": [hole]}]
+    surfaces = [
+        {"name": "Roof", "access": "occupational", "outline": [[0, 0], [20, 0], [20, 20], [0, 20]], "holes": [hole]}
+    ]
     result = assess(load(site([panel("P1", "Operator A (invented)", 10, 1, 0, eirp=4000)], surfaces)))
     roof = result.surfaces[0]
     penthouse = shapely.Polygon(hole)
@@ -149,7 +190,7 @@ def test_a_penthouse_hole_has_no_grid_point_maximum_or_zone(load):
     from exposure.report.section_figure import surfaces_along
 
     s = np.linspace(0, 20, 401)
-    (surface, mask), = surfaces_along(result, (10.0, 0.0), 0.0, s)  # the section line through the penthouse
+    ((surface, mask),) = surfaces_along(result, (10.0, 0.0), 0.0, s)  # the section line through the penthouse
     assert not mask[(s > 3.001) & (s < 6.999)].any()  # nobody drawn standing inside it
 
 
@@ -163,7 +204,12 @@ def test_overlapping_surfaces_and_bad_holes_are_refused(tmp_path):
     path = tmp_path / "overlap.json"
     path.write_text(json.dumps(data))
     result = runner.invoke(app, ["validate", str(path)])
-    assert result.exit_code == 2 and "'Roof'" in result.output and "'Garden'" in result.output and "overlap" in result.output
+    assert (
+        result.exit_code == 2
+        and "'Roof'" in result.output
+        and "'Garden'" in result.output
+        and "overlap" in result.output
+    )
     roof["holes"] = [garden["outline"]]
     path.write_text(json.dumps(data))
     assert runner.invoke(app, ["validate", str(path)]).exit_code == 0
@@ -215,8 +261,19 @@ def test_an_omni_first_site_reports_and_omnis_get_no_boresight_arrow(tmp_path):
     the previous emitter's boresight arrow. Omni labels carry no arrow tip."""
     from exposure.report.labels import Labels, emitter_labels
 
-    omni = {"id": "O1", "operator": "Op O (invented)", "kind": "omni", "frequency_mhz": 850, "power_w": 40,
-            "gain_dbi": 10, "x_m": 5, "y_m": 5, "z_m": 3, "v_beamwidth_deg": 8, "length_m": 1.5}
+    omni = {
+        "id": "O1",
+        "operator": "Op O (invented)",
+        "kind": "omni",
+        "frequency_mhz": 850,
+        "power_w": 40,
+        "gain_dbi": 10,
+        "x_m": 5,
+        "y_m": 5,
+        "z_m": 3,
+        "v_beamwidth_deg": 8,
+        "length_m": 1.5,
+    }
     surfaces = [{"name": "Roof", "access": "occupational", "outline": [[0, 0], [20, 0], [20, 20], [0, 20]]}]
     data = site([omni, panel("P1", "A (invented)", 10, 1, 0), dict(omni, id="O2", x_m=15)], surfaces)
     path = tmp_path / "omni.json"
@@ -233,9 +290,9 @@ def test_cli_in_a_pipe_shows_full_names_and_one_number_format(tmp_path):
     """In a pipe (CliRunner is not a terminal) tables are never cut at 80 columns; the same number
     reads the same in the CLI table, the findings (text built from the JSON) and the PDF —
     all through exposure.numbers."""
+    from conftest import REPO
     from pypdf import PdfReader
 
-    from conftest import REPO
     from exposure.numbers import number, percent
 
     sample = REPO / "sample_sites" / "rooftop-larkspur.toml"

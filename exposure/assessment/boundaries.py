@@ -24,7 +24,9 @@ def boundary_directions(antenna: Antenna) -> dict[str, list[np.ndarray]]:
     return {"front": [front], "back": [-front], "side": [left, -left], "above": [up], "below": [-up]}
 
 
-def emitter_boundaries(antenna: Antenna, limits_w_m2: dict[str, float], reflection: float) -> dict[str, dict[str, float]]:
+def emitter_boundaries(
+    antenna: Antenna, limits_w_m2: dict[str, float], reflection: float
+) -> dict[str, dict[str, float]]:
     """Front, back, side, above and below boundary distances per tier [m]."""
     directions = boundary_directions(antenna)
     limits = [limits_w_m2[tier] for tier in TIERS]

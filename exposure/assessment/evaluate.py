@@ -174,17 +174,24 @@ def probe(site: Site, point_m: Sequence[float], standing: bool | None = None) ->
     limits = site_limits(site)
     emitters = []
     for i, antenna in enumerate(site.antennas):
-        emitters.append({
-            "id": antenna.id,
-            "frequency_mhz": antenna.frequency_mhz,
-            "model": model_for(antenna),
-            "power_density_w_m2": float(density[i]),
-            "ratio": {tier: float(density[i] / limits.limit[tier][i]) for tier in TIERS},
-        })
+        emitters.append(
+            {
+                "id": antenna.id,
+                "frequency_mhz": antenna.frequency_mhz,
+                "model": model_for(antenna),
+                "power_density_w_m2": float(density[i]),
+                "ratio": {tier: float(density[i] / limits.limit[tier][i]) for tier in TIERS},
+            }
+        )
     total = {tier: float(np.sum(density / limits.limit[tier])) for tier in TIERS}
     inside = [a.id for a in site.antennas if bool(element_zone(a, point)[0])]
-    out = {"point_m": [float(v) for v in point[0]], "standard": site.table.key, "emitters": emitters, "total_ratio": total,
-           "element_zone": inside}
+    out = {
+        "point_m": [float(v) for v in point[0]],
+        "standard": site.table.key,
+        "emitters": emitters,
+        "total_ratio": total,
+        "element_zone": inside,
+    }
     if limits.local is not None:  # the local (spatial-peak) criterion at the point, from the spatial-peak model
         peak = peak_density(site, point, density[:, None], site.evaluation, limits)[:, 0]
         out["total_ratio_local"] = {tier: float(np.sum(peak / limits.local[tier])) for tier in TIERS}
@@ -193,8 +200,13 @@ def probe(site: Site, point_m: Sequence[float], standing: bool | None = None) ->
     if standing or (standing is None and surface is not None):
         _, totals = body_column(site, x, y, z, limits)
         body_height = site.body_height_m
-        out["body"] = {"from_z_m": z, "to_z_m": z + body_height, "evaluation": site.evaluation,
-                       "surface": surface.name if surface is not None else None, "total_ratio": totals}
+        out["body"] = {
+            "from_z_m": z,
+            "to_z_m": z + body_height,
+            "evaluation": site.evaluation,
+            "surface": surface.name if surface is not None else None,
+            "total_ratio": totals,
+        }
     return out
 
 

@@ -105,12 +105,12 @@ class EmitterResult:
             "headroom": self.headroom_json(),
         }
 
-
     def headroom_json(self) -> dict:
         scale = self.public_headroom_scale
         return {
             "power_scale_public_compliant": scale,
-            "max_transmitter_power_w": None if scale is None or self.transmitter_power_w is None
+            "max_transmitter_power_w": None
+            if scale is None or self.transmitter_power_w is None
             else scale * self.transmitter_power_w,
             "max_eirp_w": None if scale is None else scale * self.eirp_w,
         }
@@ -166,7 +166,9 @@ class SurfaceResult:
             "area_m2": self.area_m2,
             "area_above_limit_m2": self.area_above_m2,
             "compliant": self.compliant,
-            "exceedance_regions": {k: [[list(p) for p in poly] for poly in v] for k, v in self.exceedance_regions.items()},
+            "exceedance_regions": {
+                k: [[list(p) for p in poly] for poly in v] for k, v in self.exceedance_regions.items()
+            },
             "responsible_emitters": self.responsible,
             "headroom_factor": self.headroom_factor,
             "element_zone_area_m2": self.element_zone_area_m2,

@@ -89,8 +89,9 @@ def assess(
     site = prepared_site(site)
     info = site
     grid_m = grid_m or info.grid_m
-    problem = grid_budget_problem([(s.name, s.outline) for s in site.surfaces], len(site.emitters),
-                                  site.body_height_m, grid_m)
+    problem = grid_budget_problem(
+        [(s.name, s.outline) for s in site.surfaces], len(site.emitters), site.body_height_m, grid_m
+    )
     if problem:
         from exposure.errors import InputError
 
@@ -121,30 +122,33 @@ def assess(
     emitters = []
     for i, (antenna, emitter) in enumerate(zip(site.antennas, site.emitters, strict=True)):
         limits_i = {tier: float(limits.limit[tier][i]) for tier in TIERS}
-        emitters.append(EmitterResult(
-            id=antenna.id,
-            operator=emitter.operator,
-            kind=antenna.kind,
-            frequency_mhz=antenna.frequency_mhz,
-            net_power_w=emitter.net_power_w,
-            gain_dbi=antenna.gain_dbi,
-            eirp_w=emitter.eirp_w,
-            erp_w=emitter.erp_w,
-            time_averaging_factor=emitter.time_averaging_factor,
-            model=model_for(antenna),
-            limit=LimitUsed(limits_i["general_public"], limits_i["occupational"], bool(limits.derived[i]),
-                            site.table.citation()),
-            boundary_m=emitter_boundaries(antenna, limits_i, factor),
-            main_beam_boundary_m={
-                tier: boresight_distance_to_limit(antenna, limits_i[tier], reflection=factor) for tier in TIERS
-            },
-            azimuth_deg=emitter.azimuth_deg,
-            mech_tilt_deg=emitter.mech_tilt_deg,
-            elec_tilt_deg=emitter.elec_tilt_deg,
-            position_m=antenna.position_m,
-            transmitter_power_w=emitter.transmitter_power_w,
-            public_headroom_scale=None if math.isinf(public_headroom[i]) else float(public_headroom[i]),
-        ))
+        emitters.append(
+            EmitterResult(
+                id=antenna.id,
+                operator=emitter.operator,
+                kind=antenna.kind,
+                frequency_mhz=antenna.frequency_mhz,
+                net_power_w=emitter.net_power_w,
+                gain_dbi=antenna.gain_dbi,
+                eirp_w=emitter.eirp_w,
+                erp_w=emitter.erp_w,
+                time_averaging_factor=emitter.time_averaging_factor,
+                model=model_for(antenna),
+                limit=LimitUsed(
+                    limits_i["general_public"], limits_i["occupational"], bool(limits.derived[i]), site.table.citation()
+                ),
+                boundary_m=emitter_boundaries(antenna, limits_i, factor),
+                main_beam_boundary_m={
+                    tier: boresight_distance_to_limit(antenna, limits_i[tier], reflection=factor) for tier in TIERS
+                },
+                azimuth_deg=emitter.azimuth_deg,
+                mech_tilt_deg=emitter.mech_tilt_deg,
+                elec_tilt_deg=emitter.elec_tilt_deg,
+                position_m=antenna.position_m,
+                transmitter_power_w=emitter.transmitter_power_w,
+                public_headroom_scale=None if math.isinf(public_headroom[i]) else float(public_headroom[i]),
+            )
+        )
 
     work = tuple(work_position(site, w, limits, offsets) for w in site.work_positions)
     surface_results = tuple(r for r, _ in surfaces)

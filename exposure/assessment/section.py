@@ -76,7 +76,8 @@ def choose_section_emitters(emitters: Sequence[EmitterResult]) -> list[EmitterRe
     chosen: list[EmitterResult] = []
     for e in ranked:
         duplicate = any(
-            abs(e.position_m[0] - c.position_m[0]) < 1.0 and abs(e.position_m[1] - c.position_m[1]) < 1.0
+            abs(e.position_m[0] - c.position_m[0]) < 1.0
+            and abs(e.position_m[1] - c.position_m[1]) < 1.0
             and abs(((e.azimuth_deg or 0.0) - (c.azimuth_deg or 0.0) + 180) % 360 - 180) < 20
             for c in chosen
         )

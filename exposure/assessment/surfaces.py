@@ -85,8 +85,9 @@ class Columns:
     shares: tuple | None = None  # (column indices above the public limit, tier -> (emitters, columns) shares)
 
 
-def element_cells(antennas: Sequence[Antenna], cx: np.ndarray, cy: np.ndarray, z_low: float, z_high: float,
-                  cell_m: float) -> np.ndarray:
+def element_cells(
+    antennas: Sequence[Antenna], cx: np.ndarray, cy: np.ndarray, z_low: float, z_high: float, cell_m: float
+) -> np.ndarray:
     """Cells (centres cx, cy, side cell_m) from which a person standing from z_low to z_high
     reaches an emitter's element zone (:func:`exposure.models.element_zone`).
 
@@ -115,7 +116,9 @@ def element_cells(antennas: Sequence[Antenna], cx: np.ndarray, cy: np.ndarray, z
     return marked
 
 
-def _evaluate_columns(site, surface, limits: SiteLimits, offsets, cx, cy, acc, progress=None, done_total=None) -> Columns:
+def _evaluate_columns(
+    site, surface, limits: SiteLimits, offsets, cx, cy, acc, progress=None, done_total=None
+) -> Columns:
     """Total exposure ratio per tier over the body height above each (cx, cy), in chunks
     of bounded size; updates the surface's shares (5 % rule) and headroom as it goes."""
     evaluation = site.evaluation
@@ -159,8 +162,15 @@ def _evaluate_columns(site, surface, limits: SiteLimits, offsets, cx, cy, acc, p
         if above.size:
             kept_index.append(start + above)
             for tier in TIERS:
-                kept[tier].append(emitter_shares(limits, density[:, above], None if density_peak is None else
-                                                 density_peak[:, above], evaluation, tier).astype(np.float32))
+                kept[tier].append(
+                    emitter_shares(
+                        limits,
+                        density[:, above],
+                        None if density_peak is None else density_peak[:, above],
+                        evaluation,
+                        tier,
+                    ).astype(np.float32)
+                )
     shares = None
     if kept_index:
         shares = (np.concatenate(kept_index), {t: np.concatenate(kept[t], axis=1) for t in TIERS})
@@ -205,16 +215,22 @@ def evaluate_surface(site, surface, limits: SiteLimits, offsets, grid_m, progres
     cell_index = np.flatnonzero(inside.ravel())
     gx, gy = np.meshgrid(x, y)
     acc = SurfaceAccumulator.new(len(site.antennas))
-    cells = _evaluate_columns(site, surface, limits, offsets, gx.ravel()[cell_index], gy.ravel()[cell_index],
-                              acc, progress, done_total)
+    cells = _evaluate_columns(
+        site, surface, limits, offsets, gx.ravel()[cell_index], gy.ravel()[cell_index], acc, progress, done_total
+    )
     maps = {tier: np.full(inside.size, np.nan) for tier in TIERS}
     for tier in TIERS:
         maps[tier][cell_index] = cells.ratio[tier]
     element = np.zeros(inside.size, dtype=bool)
     z_low = surface.elevation_m
     element[cell_index] = element_cells(site.antennas, cells.x, cells.y, z_low, z_low + site.body_height_m, grid_m)
-    grid = SurfaceGrid(x_m=x, y_m=y, ratio={t: m.reshape(inside.shape) for t, m in maps.items()}, cell_m=grid_m,
-                       element_zone=element.reshape(inside.shape))
+    grid = SurfaceGrid(
+        x_m=x,
+        y_m=y,
+        ratio={t: m.reshape(inside.shape) for t, m in maps.items()},
+        cell_m=grid_m,
+        element_zone=element.reshape(inside.shape),
+    )
     spots_xy = hot_spots(surface, site.antennas, site.body_height_m)
     spots = _evaluate_columns(site, surface, limits, offsets, *spots_xy, acc)
     return grid, cells, spots, acc
@@ -255,7 +271,7 @@ def surface_zones(site, surface, grid, cells: Columns, spots: Columns, limits: S
     evaluation = site.evaluation
     chunk = max(1, POINT_BUDGET // max(1, n_e * len(offsets)))
     for start in range(0, len(missing), chunk):
-        idx = missing[start:start + chunk]
+        idx = missing[start : start + chunk]
         points = np.empty((len(idx), len(offsets), 3))
         points[..., 0] = x[idx, None]
         points[..., 1] = y[idx, None]
@@ -264,8 +280,16 @@ def surface_zones(site, surface, grid, cells: Columns, spots: Columns, limits: S
         density_peak = peak_density(site, points, density, evaluation, limits)
         for tier in TIERS:
             places[tier]["shares"][:, idx] = emitter_shares(limits, density, density_peak, evaluation, tier)
-    return zones_of_surface(surface.name, polygon, grid, places, [a.id for a in site.antennas],
-                            [e.operator for e in site.emitters], grid_m, public_parts=outer)
+    return zones_of_surface(
+        surface.name,
+        polygon,
+        grid,
+        places,
+        [a.id for a in site.antennas],
+        [e.operator for e in site.emitters],
+        grid_m,
+        public_parts=outer,
+    )
 
 
 def _update_headroom(headroom, ratio, total, reduced, evaluation) -> None:
@@ -287,13 +311,11 @@ def _exceedance_polygons(grid: SurfaceGrid, tier: str) -> list[list[tuple[float,
         return []
     import contourpy
 
-    generator = contourpy.contour_generator(
-        grid.x_m, grid.y_m, np.ma.masked_invalid(values), fill_type="OuterOffset"
-    )
+    generator = contourpy.contour_generator(grid.x_m, grid.y_m, np.ma.masked_invalid(values), fill_type="OuterOffset")
     points, offsets = generator.filled(1.0, float(np.nanmax(values)) * 2 + 1.0)
     rings = []
-    for pts, offs in zip(points, offsets):
-        outer = pts[offs[0]:offs[1]]
+    for pts, offs in zip(points, offsets, strict=True):
+        outer = pts[offs[0] : offs[1]]
         rings.append([(round(float(px), 3), round(float(py), 3)) for px, py in outer])
     return rings
 
@@ -309,8 +331,12 @@ def surface_result(site, surface, grid, cells: Columns, spots: Columns, acc) -> 
     for tier in TIERS:
         # The maximum over the grid cells and the hot spots next to the antennas.
         best = max(
-            ((c.ratio[tier][k], c.x[k], c.y[k], c.at_z[tier][k], bool(c.local_governs[tier][k]))
-             for c in (cells, spots) if len(c.x) for k in [int(np.argmax(c.ratio[tier]))]),
+            (
+                (c.ratio[tier][k], c.x[k], c.y[k], c.at_z[tier][k], bool(c.local_governs[tier][k]))
+                for c in (cells, spots)
+                if len(c.x)
+                for k in [int(np.argmax(c.ratio[tier]))]
+            ),
             key=lambda item: item[0],
         )
         criterion[tier] = ("local" if best[4] else "whole-body") if has_local else "single"

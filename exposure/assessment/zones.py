@@ -142,8 +142,13 @@ class Sign:
     reason: str
 
     def to_json(self) -> dict:
-        return {"category": self.category, "word": self.word, "surface": self.surface, "at_m": list(self.at_m),
-                "reason": self.reason}
+        return {
+            "category": self.category,
+            "word": self.word,
+            "surface": self.surface,
+            "at_m": list(self.at_m),
+            "reason": self.reason,
+        }
 
 
 def _filled(values: np.ndarray, steps: int = 2) -> np.ndarray:
@@ -162,8 +167,9 @@ def _filled(values: np.ndarray, steps: int = 2) -> np.ndarray:
     return out
 
 
-def zone_polygons(x_m: np.ndarray, y_m: np.ndarray, ratio: np.ndarray, level: float,
-                  surface: shapely.Polygon) -> list[shapely.Polygon]:
+def zone_polygons(
+    x_m: np.ndarray, y_m: np.ndarray, ratio: np.ndarray, level: float, surface: shapely.Polygon
+) -> list[shapely.Polygon]:
     """Connected regions where *ratio* (cell centres, NaN off the surface) exceeds *level*.
 
     Marching squares (contourpy) on the grid, extended to the surface's edge, then clipped to
@@ -184,8 +190,8 @@ def zone_polygons(x_m: np.ndarray, y_m: np.ndarray, ratio: np.ndarray, level: fl
     generator = contourpy.contour_generator(x, y, np.ma.masked_invalid(padded), fill_type="OuterOffset")
     points, offsets = generator.filled(level, float(finite.max()) * 2.0 + 1.0)
     pieces = []
-    for pts, offs in zip(points, offsets):
-        rings = [pts[a:b] for a, b in zip(offs[:-1], offs[1:])]
+    for pts, offs in zip(points, offsets, strict=True):
+        rings = [pts[a:b] for a, b in zip(offs[:-1], offs[1:], strict=True)]
         polygon = shapely.make_valid(shapely.Polygon(rings[0], rings[1:]))
         pieces.append(polygon)
     if not pieces:
@@ -263,8 +269,10 @@ def zones_of_surface(
         covered = np.zeros(len(x), dtype=bool)
         for p in parts:
             covered |= contains(p, x, y)
-        squares = [shapely.box(x[k] - cell_m / 2, y[k] - cell_m / 2, x[k] + cell_m / 2, y[k] + cell_m / 2)
-                   for k in np.flatnonzero((total > level) & ~covered)]
+        squares = [
+            shapely.box(x[k] - cell_m / 2, y[k] - cell_m / 2, x[k] + cell_m / 2, y[k] + cell_m / 2)
+            for k in np.flatnonzero((total > level) & ~covered)
+        ]
         if squares:
             parts = _polygons(shapely.intersection(shapely.union_all(parts + squares), surface))
         for polygon in parts:
@@ -279,19 +287,21 @@ def zones_of_surface(
             emitter_max = shares.max(axis=1)
             responsible = [i for i in range(len(ids)) if emitter_max[i] >= RESPONSIBILITY_SHARE]
             off = _greedy_power_down(shares)
-            zones.append(Zone(
-                surface=surface_name,
-                category=category,
-                polygon=polygon,
-                area_m2=round(float(polygon.area), 4),
-                max_ratio={t: float(places[t]["total"][k]) for t in ("general_public", "occupational")},
-                max_at_m=tuple(round(v, 3) for v in where),
-                responsible_emitters=tuple(ids[i] for i in responsible),
-                responsible_operators=tuple(dict.fromkeys(operators[i] for i in responsible)),
-                power_down=tuple(ids[i] for i in off),
-                power_down_operators=tuple(dict.fromkeys(operators[i] for i in off)),
-                shares={ids[i]: round(float(emitter_max[i]), 6) for i in range(len(ids)) if emitter_max[i] > 0},
-            ))
+            zones.append(
+                Zone(
+                    surface=surface_name,
+                    category=category,
+                    polygon=polygon,
+                    area_m2=round(float(polygon.area), 4),
+                    max_ratio={t: float(places[t]["total"][k]) for t in ("general_public", "occupational")},
+                    max_at_m=tuple(round(v, 3) for v in where),
+                    responsible_emitters=tuple(ids[i] for i in responsible),
+                    responsible_operators=tuple(dict.fromkeys(operators[i] for i in responsible)),
+                    power_down=tuple(ids[i] for i in off),
+                    power_down_operators=tuple(dict.fromkeys(operators[i] for i in off)),
+                    shares={ids[i]: round(float(emitter_max[i]), 6) for i in range(len(ids)) if emitter_max[i] > 0},
+                )
+            )
     return zones
 
 
@@ -309,12 +319,21 @@ def signs_for(zones: Sequence[Zone], access_points, surfaces_elevation: dict[str
         elevation = surfaces_elevation.get(surface, 0.0)
         for point in by_surface.get(surface, []):
             for category in sorted({z.category for z in here}):
-                signs.append(Sign(category, SIGN_WORDS[category], surface, (point.x_m, point.y_m, elevation),
-                                  f"way onto {surface} ({point.name}), which holds a category {category} zone"))
+                signs.append(
+                    Sign(
+                        category,
+                        SIGN_WORDS[category],
+                        surface,
+                        (point.x_m, point.y_m, elevation),
+                        f"way onto {surface} ({point.name}), which holds a category {category} zone",
+                    )
+                )
         for zone in here:
             targets = [(p.x_m, p.y_m, f"on the way from {p.name}") for p in by_surface.get(surface, [])]
             if not targets:
-                targets = [(zone.max_at_m[0], zone.max_at_m[1], "nearest the zone's maximum (no access point declared)")]
+                targets = [
+                    (zone.max_at_m[0], zone.max_at_m[1], "nearest the zone's maximum (no access point declared)")
+                ]
             seen = set()
             for x, y, why in targets:
                 edge = shapely.ops.nearest_points(zone.polygon.exterior, shapely.Point(x, y))[0]
@@ -322,6 +341,13 @@ def signs_for(zones: Sequence[Zone], access_points, surfaces_elevation: dict[str
                 if key in seen:
                     continue
                 seen.add(key)
-                signs.append(Sign(zone.category, zone.word, surface, (round(edge.x, 3), round(edge.y, 3), elevation),
-                                  f"edge of the category {zone.category} zone, {why}"))
+                signs.append(
+                    Sign(
+                        zone.category,
+                        zone.word,
+                        surface,
+                        (round(edge.x, 3), round(edge.y, 3), elevation),
+                        f"edge of the category {zone.category} zone, {why}",
+                    )
+                )
     return signs

@@ -42,10 +42,6 @@ def result_name(site_id: str) -> str:
     return f"{site_id}.json"
 
 
-
-
-
-
 @dataclass(frozen=True)
 class BatchOptions:
     """Settings shared by every site of a run."""
@@ -192,9 +188,7 @@ def site_fingerprint(site, grid_m: float | None) -> str:
         "tool_version": __version__,
         "input_sha256": site.sha256,
         "limits": [site.table.key, _file_sha256(Path(site.table.path))],
-        "patterns": sorted(
-            _file_sha256(site.path.parent / e.pattern_file) for e in site.emitters if e.pattern_file
-        ),
+        "patterns": sorted(_file_sha256(site.path.parent / e.pattern_file) for e in site.emitters if e.pattern_file),
         "grid_m": grid_m,
     }
     return hashlib.sha256(json.dumps(parts, sort_keys=True).encode()).hexdigest()

@@ -1,5 +1,4 @@
-"""A site's row in the summary, and the summary files (CSV and JSON).
-"""
+"""A site's row in the summary, and the summary files (CSV and JSON)."""
 
 from __future__ import annotations
 
@@ -71,8 +70,10 @@ class SiteRow:
     def from_result(cls, file: str, result: dict, status: Status, seconds: float) -> SiteRow:
         """The row of an assessment, from its JSON form (``Assessment.to_json()``)."""
         max_percent = {  # a public figure from public surfaces only, an occupational one from occupational ones
-            tier: max((100.0 * s["max_ratio"][tier] for s in result["surfaces"] if s.get("governing_tier") == tier),
-                      default=None)
+            tier: max(
+                (100.0 * s["max_ratio"][tier] for s in result["surfaces"] if s.get("governing_tier") == tier),
+                default=None,
+            )
             for tier in TIERS
         }
         flags = {sev: sum(1 for f in result["flags"] if f["severity"] == sev) for sev in SEVERITIES}
@@ -165,8 +166,9 @@ def write_summary(options: BatchOptions, rows: Sequence[SiteRow], runner: str) -
 
 
 def failed_row(file: str, site_id: str | None, problems: Sequence[str], start: float) -> SiteRow:
-    return SiteRow(file=file, site_id=site_id, status="failed", problems=tuple(problems),
-                   seconds=time.perf_counter() - start)
+    return SiteRow(
+        file=file, site_id=site_id, status="failed", problems=tuple(problems), seconds=time.perf_counter() - start
+    )
 
 
 def problem_lines(exc: InputError, *sources: str) -> list[str]:

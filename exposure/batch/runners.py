@@ -89,8 +89,12 @@ class ProcessPoolRunner:
                 try:
                     row = future.result()
                 except Exception as exc:  # e.g. BrokenProcessPool: a worker was killed
-                    row = SiteRow(task.file, task.site_id, "failed",
-                                  problems=(f"worker process failed: {type(exc).__name__}: {first_line(exc)}",))
+                    row = SiteRow(
+                        task.file,
+                        task.site_id,
+                        "failed",
+                        problems=(f"worker process failed: {type(exc).__name__}: {first_line(exc)}",),
+                    )
                 yield task, row
         except BaseException:  # an interrupt, or the caller stopped early
             stop.set()
@@ -103,7 +107,7 @@ class ProcessPoolRunner:
 def _one_thread_environment():
     """One numpy/BLAS thread in processes started inside; the environment restored after."""
     saved = {name: os.environ.get(name) for name in THREAD_VARIABLES}
-    os.environ.update({name: "1" for name in THREAD_VARIABLES})
+    os.environ.update(dict.fromkeys(THREAD_VARIABLES, "1"))
     try:
         yield
     finally:
@@ -188,8 +192,9 @@ class DaskRunner:
         try:
             self.client = Client(self.address, timeout=self.timeout_s, set_as_default=False)
         except Exception as exc:
-            raise InputError(f"cannot connect to the Dask scheduler at {self.address!r}: {first_line(exc)}",
-                             "--scheduler") from None
+            raise InputError(
+                f"cannot connect to the Dask scheduler at {self.address!r}: {first_line(exc)}", "--scheduler"
+            ) from None
         return self
 
     def _probe(self) -> None:
@@ -205,13 +210,18 @@ class DaskRunner:
         try:
             asyncio.run(probe())
         except ValueError as exc:
-            raise InputError(f"{self.address!r} is not a scheduler address ({first_line(exc)}); "
-                             "give tcp://HOST:PORT", "--scheduler") from None
+            raise InputError(
+                f"{self.address!r} is not a scheduler address ({first_line(exc)}); give tcp://HOST:PORT", "--scheduler"
+            ) from None
         except OSError as exc:
-            raise InputError(f"cannot reach the Dask scheduler at {self.address!r} within {self.timeout_s:g} s "
-                             f"({first_line(exc)})", "--scheduler") from None
+            raise InputError(
+                f"cannot reach the Dask scheduler at {self.address!r} within {self.timeout_s:g} s ({first_line(exc)})",
+                "--scheduler",
+            ) from None
         except Exception:
-            raise InputError(f"something answers at {self.address!r}, but not a Dask scheduler", "--scheduler") from None
+            raise InputError(
+                f"something answers at {self.address!r}, but not a Dask scheduler", "--scheduler"
+            ) from None
 
     def __exit__(self, *exc) -> None:
         if self.client is not None:
@@ -228,13 +238,17 @@ class DaskRunner:
             self.client.submit(run_site, task, key=f"exposure-site-{task.site_id}-{token}", pure=False)
             for task in tasks
         ]
-        by_key = {future.key: task for future, task in zip(futures, tasks)}
+        by_key = {future.key: task for future, task in zip(futures, tasks, strict=True)}
         try:
             for future, outcome in as_completed(futures, with_results=True, raise_errors=False, loop=self.client.loop):
                 task = by_key[future.key]
                 if isinstance(outcome, BaseException):  # a worker died or could not run it
-                    outcome = SiteRow(task.file, task.site_id, "failed",
-                                      problems=(f"dask worker failed: {type(outcome).__name__}: {first_line(outcome)}",))
+                    outcome = SiteRow(
+                        task.file,
+                        task.site_id,
+                        "failed",
+                        problems=(f"dask worker failed: {type(outcome).__name__}: {first_line(outcome)}",),
+                    )
                 yield task, outcome
         finally:
             self.client.cancel(futures)

@@ -70,8 +70,12 @@ def _assess_and_write(task: SiteTask) -> dict:
             write_report,  # renders in full, then writes atomically
         )
 
-        write_pair(folder / report_name(site.id), lambda path: write_report(assessment, path),
-                   folder / result_name(site.id), json_bytes(result))
+        write_pair(
+            folder / report_name(site.id),
+            lambda path: write_report(assessment, path),
+            folder / result_name(site.id),
+            json_bytes(result),
+        )
     else:
         _clear_site_folder(folder)
         atomic_write_json(folder / result_name(site.id), result)
@@ -86,13 +90,3 @@ def _clear_site_folder(folder: Path) -> None:
     report.unlink(missing_ok=True)
     for path in (result, report):
         remove_leftovers(path)
-
-
-
-
-
-
-
-
-
-

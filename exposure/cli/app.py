@@ -65,7 +65,9 @@ class _GuardedGroup(TyperGroup):
             if _debug(ctx):
                 raise
             where = printable(str(exc.filename)) if exc.filename else "output"
-            raise fail(f"{where}: {exc.strerror or type(exc).__name__} (a problem of the file system, not of the input)") from None
+            raise fail(
+                f"{where}: {exc.strerror or type(exc).__name__} (a problem of the file system, not of the input)"
+            ) from None
         except (RecursionError, MemoryError) as exc:
             if _debug(ctx):
                 raise

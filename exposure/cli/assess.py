@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 import math
-from enum import Enum
+from enum import StrEnum
 from pathlib import Path
 from typing import Annotated
 
@@ -25,12 +25,14 @@ from exposure.cli.common import (
 EXIT_FAIL_ON = 3
 
 
-class FailOn(str, Enum):
+class FailOn(StrEnum):
     mitigation_required = "mitigation-required"
     verify_by_measurement = "verify-by-measurement"
 
 
-GridOption = Annotated[float | None, typer.Option("--grid-m", help="Map spacing in metres (default: the site's grid_m).")]
+GridOption = Annotated[
+    float | None, typer.Option("--grid-m", help="Map spacing in metres (default: the site's grid_m).")
+]
 MeasureAboveOption = Annotated[
     float, typer.Option("--measure-above", help="Governing ratio from which a measurement is called for (0-1].")
 ]
@@ -103,30 +105,49 @@ def render(result) -> None:
     for col in ("emitter", "operator", "kind", "MHz", "EIRP W", "ERP W", "model"):
         emitters.add_column(col, justify="right" if col in ("MHz", "EIRP W", "ERP W") else "left")
     for e in result.emitters:
-        emitters.add_row(esc(e.id), esc(e.operator), e.kind, fmt(e.frequency_mhz, 5), fmt(e.eirp_w), fmt(e.erp_w), e.model)
+        emitters.add_row(
+            esc(e.id), esc(e.operator), e.kind, fmt(e.frequency_mhz, 5), fmt(e.eirp_w), fmt(e.erp_w), e.model
+        )
     out.print(emitters)
-    boundaries = make_table(title="Compliance boundaries, metres from the centre of radiation",
-                       show_edge=False, header_style="bold", title_justify="left")
+    boundaries = make_table(
+        title="Compliance boundaries, metres from the centre of radiation",
+        show_edge=False,
+        header_style="bold",
+        title_justify="left",
+    )
     for col in ("emitter", "tier", "front", "back", "side", "above", "below", "main beam"):
         boundaries.add_column(col, justify="left" if col in ("emitter", "tier") else "right")
     for e in result.emitters:
         for tier, label in (("general_public", "general public"), ("occupational", "occupational")):
             b = e.boundary_m[tier]
             boundaries.add_row(
-                esc(e.id) if tier == "general_public" else "", label,
+                esc(e.id) if tier == "general_public" else "",
+                label,
                 *(f"{b[d]:.2f}" for d in ("front", "back", "side", "above", "below")),
                 f"{e.main_beam_boundary_m[tier]:.2f}",
             )
     out.print(boundaries)
-    surfaces = make_table(title="Surfaces: total exposure, % of the general-public (GP) and occupational (occ) limits", show_edge=False, header_style="bold",
-                     title_justify="left")
+    surfaces = make_table(
+        title="Surfaces: total exposure, % of the general-public (GP) and occupational (occ) limits",
+        show_edge=False,
+        header_style="bold",
+        title_justify="left",
+    )
     for col in ("surface", "access", "max % GP", "max % occ", "m² > GP", "m² > occ", "compliant"):
-        surfaces.add_column(col, justify="left" if col in ("surface", "access", "compliant") else "right",
-                            no_wrap=col == "access")
+        surfaces.add_column(
+            col, justify="left" if col in ("surface", "access", "compliant") else "right", no_wrap=col == "access"
+        )
     for s in result.surfaces:
         verdict = "not judged" if s.compliant is None else ("yes" if s.compliant else "[bold]NO[/bold]")
-        surfaces.add_row(esc(s.name), s.access, fmt(100 * s.max_ratio["general_public"]), fmt(100 * s.max_ratio["occupational"]),
-                         f"{s.area_above_m2['general_public']:.1f}", f"{s.area_above_m2['occupational']:.1f}", verdict)
+        surfaces.add_row(
+            esc(s.name),
+            s.access,
+            fmt(100 * s.max_ratio["general_public"]),
+            fmt(100 * s.max_ratio["occupational"]),
+            f"{s.area_above_m2['general_public']:.1f}",
+            f"{s.area_above_m2['occupational']:.1f}",
+            verdict,
+        )
     out.print(surfaces)
     if result.work_positions:
         work = make_table(title="Work positions", show_edge=False, header_style="bold", title_justify="left")

@@ -51,7 +51,8 @@ def batch(
     standard: StandardOption = None,
     limits_file: LimitsFileOption = None,
     grid_m: Annotated[
-        float | None, typer.Option("--grid-m", help="Map spacing in metres for every site (default: each site's grid_m).")
+        float | None,
+        typer.Option("--grid-m", help="Map spacing in metres for every site (default: each site's grid_m)."),
     ] = None,
     quiet: Annotated[bool, typer.Option("--quiet", "-q", help="No progress bar and no closing line.")] = False,
 ) -> None:
@@ -96,6 +97,7 @@ def batch(
     debug = _debug(ctx)
     settled = 0
     with _progress(len(files), enabled=not quiet and is_terminal()) as show, _sigterm_as_interrupt():
+
         def on_row(row) -> None:
             nonlocal settled
             settled += 1

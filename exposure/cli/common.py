@@ -43,8 +43,13 @@ def console(stderr: bool = False):
 
     stream = sys.stderr if stderr else sys.stdout
     terminal = stream.isatty()
-    return Console(stderr=stderr, highlight=False, soft_wrap=not terminal, width=None if terminal else 100_000,
-                   no_color=not terminal)
+    return Console(
+        stderr=stderr,
+        highlight=False,
+        soft_wrap=not terminal,
+        width=None if terminal else 100_000,
+        no_color=not terminal,
+    )
 
 
 def make_table(**options):
@@ -103,8 +108,14 @@ class Progress:
             from rich.progress import BarColumn, TextColumn, TimeRemainingColumn
             from rich.progress import Progress as Bar
 
-            self._bar = Bar(TextColumn("{task.description}"), BarColumn(), TextColumn("{task.percentage:>3.0f}%"),
-                            TimeRemainingColumn(), console=console(stderr=True), transient=True)
+            self._bar = Bar(
+                TextColumn("{task.description}"),
+                BarColumn(),
+                TextColumn("{task.percentage:>3.0f}%"),
+                TimeRemainingColumn(),
+                console=console(stderr=True),
+                transient=True,
+            )
             self._bar.__enter__()
             self._task = self._bar.add_task(self.label, total=None)
         return self

@@ -180,17 +180,12 @@ def _limits_text(table: LimitTable, frequency_mhz: float, tiers: dict[str, TierL
         f"{table.title} at {frequency_mhz:g} MHz",
         table.citation(),
         "",
-        *("  ".join(cell.ljust(w) for cell, w in zip(row, widths)).rstrip() for row in rows),
+        *("  ".join(cell.ljust(w) for cell, w in zip(row, widths, strict=True)).rstrip() for row in rows),
         "",
     ]
     lines += [f"{limit.tier}: {limit.label}" for limit in limits]
     notes = sorted(
-        {
-            f"{key} ({limit.tier}): {q.note}"
-            for limit in limits
-            for key, q in _quantities(limit).items()
-            if q.note
-        }
+        {f"{key} ({limit.tier}): {q.note}" for limit in limits for key, q in _quantities(limit).items() if q.note}
     )
     lines += sorted(marks) + notes
     if table.status != "confirmed":
@@ -198,10 +193,13 @@ def _limits_text(table: LimitTable, frequency_mhz: float, tiers: dict[str, TierL
     local = table.local()
     if local is not None:
         at = local.at(frequency_mhz)
-        values = ", ".join(f"{tier.replace('_', ' ')} {at[tier].comparison_power_density_w_m2()[0]:.4g} W/m²"
-                           for tier in at)
-        lines.append(f"Also to be met, the local criterion (spatial peak): {local.citation()}: {values}; "
-                     f"averaged over {at['general_public'].averaging_min:g} min.")
+        values = ", ".join(
+            f"{tier.replace('_', ' ')} {at[tier].comparison_power_density_w_m2()[0]:.4g} W/m²" for tier in at
+        )
+        lines.append(
+            f"Also to be met, the local criterion (spatial peak): {local.citation()}: {values}; "
+            f"averaged over {at['general_public'].averaging_min:g} min."
+        )
     return "\n".join(lines)
 
 
@@ -209,7 +207,7 @@ def _list_text(tables: list[LimitTable]) -> str:
     rows = [["key", "range MHz", "status", "title"]]
     rows += [[t.key, f"{t.f_min_mhz:g}–{t.f_max_mhz:g}", t.status, t.title] for t in tables]
     widths = [max(len(row[i]) for row in rows) for i in range(len(rows[0]))]
-    return "\n".join("  ".join(c.ljust(w) for c, w in zip(row, widths)).rstrip() for row in rows)
+    return "\n".join("  ".join(c.ljust(w) for c, w in zip(row, widths, strict=True)).rstrip() for row in rows)
 
 
 def _fmt(value: float | None) -> str:

@@ -40,9 +40,11 @@ def probe(
     limits_file: LimitsFileOption = None,
     standing: Annotated[
         bool | None,
-        typer.Option("--standing/--point-only",
-                     help="Also give the value over a standing person's body height from Z, as the assessment "
-                          "uses for work positions (default: when Z is the elevation of a surface holding X,Y)."),
+        typer.Option(
+            "--standing/--point-only",
+            help="Also give the value over a standing person's body height from Z, as the assessment "
+            "uses for work positions (default: when Z is the elevation of a surface holding X,Y).",
+        ),
     ] = None,
     json_out: JsonOption = False,
 ) -> None:
@@ -64,10 +66,18 @@ def probe(
     for col in ("emitter", "MHz", "model", "S W/m²", "% GP limit", "% occ. limit"):
         table.add_column(col, justify="left" if col in ("emitter", "model") else "right")
     for e in result["emitters"]:
-        table.add_row(esc(e["id"]), fmt(e["frequency_mhz"], 5), e["model"], fmt(e["power_density_w_m2"]),
-                      fmt(100 * e["ratio"]["general_public"]), fmt(100 * e["ratio"]["occupational"]))
+        table.add_row(
+            esc(e["id"]),
+            fmt(e["frequency_mhz"], 5),
+            e["model"],
+            fmt(e["power_density_w_m2"]),
+            fmt(100 * e["ratio"]["general_public"]),
+            fmt(100 * e["ratio"]["occupational"]),
+        )
     total = result["total_ratio"]
-    table.add_row("total", "", "", "", fmt(100 * total["general_public"]), fmt(100 * total["occupational"]), style="bold")
+    table.add_row(
+        "total", "", "", "", fmt(100 * total["general_public"]), fmt(100 * total["occupational"]), style="bold"
+    )
     out.print(table)
     out.print("Point value: at the point itself, with the site's ground reflection.")
     body = result.get("body")

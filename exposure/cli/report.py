@@ -25,9 +25,13 @@ def report(
     site_file: Annotated[Path, typer.Argument(metavar="SITE", help="Site record (.toml or .json).")],
     output: Annotated[
         Path | None,
-        typer.Option("--output", "-o", metavar="FILE.pdf",
-                     help="The PDF to write (default: <site-id>.pdf in the current folder; a folder: inside it). "
-                     "The JSON goes beside it as <stem>.json (<stem>.result.json where <stem>.json is the record)."),
+        typer.Option(
+            "--output",
+            "-o",
+            metavar="FILE.pdf",
+            help="The PDF to write (default: <site-id>.pdf in the current folder; a folder: inside it). "
+            "The JSON goes beside it as <stem>.json (<stem>.result.json where <stem>.json is the record).",
+        ),
     ] = None,
     standard: StandardOption = None,
     limits_file: LimitsFileOption = None,
@@ -52,8 +56,9 @@ def report(
         paths[:] = [pdf, beside]
         check_output_paths(paths, inputs)
 
-    site, result = run_assessment(site_file, standard, limits_file, grid_m, measure_above, quiet, before=check_outputs,
-                                  sections=True)
+    site, result = run_assessment(
+        site_file, standard, limits_file, grid_m, measure_above, quiet, before=check_outputs, sections=True
+    )
     pdf_path, json_path = paths
     pdf = render_pdf(result)  # rendered in full before anything is written
     write_pair(pdf_path, lambda path: atomic_write_bytes(path, pdf), json_path, json_bytes(result.to_json()))

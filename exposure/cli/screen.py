@@ -25,41 +25,78 @@ def register(app: typer.Typer) -> None:
 
 
 def screen(
-    frequency_mhz: Annotated[float | None, typer.Option("--frequency-mhz", help="Frequency, MHz.", show_default=False)] = None,
+    frequency_mhz: Annotated[
+        float | None, typer.Option("--frequency-mhz", help="Frequency, MHz.", show_default=False)
+    ] = None,
     eirp_w: Annotated[
-        float | None, typer.Option("--eirp-w", help="EIRP at full output, W (instead of --power-w).", show_default=False)
+        float | None,
+        typer.Option("--eirp-w", help="EIRP at full output, W (instead of --power-w).", show_default=False),
     ] = None,
     power_w: Annotated[
         float | None,
-        typer.Option("--power-w", help="Transmitter power at full output, W; needs --gain-dbi (dishes: or --diameter-m).", show_default=False),
+        typer.Option(
+            "--power-w",
+            help="Transmitter power at full output, W; needs --gain-dbi (dishes: or --diameter-m).",
+            show_default=False,
+        ),
     ] = None,
     gain_dbi: Annotated[float | None, typer.Option("--gain-dbi", help="Peak gain, dBi.", show_default=False)] = None,
     line_loss_db: Annotated[
-        float | None, typer.Option("--line-loss-db", help="Loss between transmitter and antenna, dB (with --power-w; default 0).", show_default=False)
+        float | None,
+        typer.Option(
+            "--line-loss-db",
+            help="Loss between transmitter and antenna, dB (with --power-w; default 0).",
+            show_default=False,
+        ),
     ] = None,
-    model: Annotated[str, typer.Option("--model", help="auto | spherical | cylindrical | synthetic | aperture | endfire.")] = "auto",
+    model: Annotated[
+        str, typer.Option("--model", help="auto | spherical | cylindrical | synthetic | aperture | endfire.")
+    ] = "auto",
     kind: Annotated[
         str | None,
-        typer.Option("--kind", help="panel | omni | dish | array | directional (default: dish with --diameter-m, panel with --h-beamwidth-deg, else omni).", show_default=False),
+        typer.Option(
+            "--kind",
+            help="panel | omni | dish | array | directional (default: dish with --diameter-m, panel with --h-beamwidth-deg, else omni).",
+            show_default=False,
+        ),
     ] = None,
     h_beamwidth_deg: Annotated[
-        float | None, typer.Option("--h-beamwidth-deg", help="Horizontal half-power beamwidth, deg; omit for an omni.", show_default=False)
+        float | None,
+        typer.Option(
+            "--h-beamwidth-deg", help="Horizontal half-power beamwidth, deg; omit for an omni.", show_default=False
+        ),
     ] = None,
     v_beamwidth_deg: Annotated[
-        float | None, typer.Option("--v-beamwidth-deg", help="Vertical half-power beamwidth, deg (synthetic).", show_default=False)
+        float | None,
+        typer.Option("--v-beamwidth-deg", help="Vertical half-power beamwidth, deg (synthetic).", show_default=False),
     ] = None,
     length_m: Annotated[
-        float | None, typer.Option("--length-m", help="Radiating aperture length, m (cylindrical, synthetic).", show_default=False)
+        float | None,
+        typer.Option("--length-m", help="Radiating aperture length, m (cylindrical, synthetic).", show_default=False),
     ] = None,
-    diameter_m: Annotated[float | None, typer.Option("--diameter-m", help="Dish diameter, m (aperture).", show_default=False)] = None,
+    diameter_m: Annotated[
+        float | None, typer.Option("--diameter-m", help="Dish diameter, m (aperture).", show_default=False)
+    ] = None,
     aperture_efficiency: Annotated[
         float, typer.Option("--aperture-efficiency", help="Dish aperture efficiency, 0-1 (aperture).")
     ] = 0.55,
-    reflection: Annotated[str, typer.Option("--reflection", help="Ground reflection on power density: none (x1) | typical (x2.56, the default, as for site records) | full (x4); OET 65.")] = "typical",
-    standard: Annotated[str, typer.Option("--standard", help="Limit table: fcc | icnirp-2020 | icnirp-1998 | canada-sc6.")] = "fcc",
+    reflection: Annotated[
+        str,
+        typer.Option(
+            "--reflection",
+            help="Ground reflection on power density: none (x1) | typical (x2.56, the default, as for site records) | full (x4); OET 65.",
+        ),
+    ] = "typical",
+    standard: Annotated[
+        str, typer.Option("--standard", help="Limit table: fcc | icnirp-2020 | icnirp-1998 | canada-sc6.")
+    ] = "fcc",
     distance_m: Annotated[
         float | None,
-        typer.Option("--distance-m", help="Separation distance, m: adds the 47 CFR 1.1307(b)(3)(i)(C) exemption test (fcc).", show_default=False),
+        typer.Option(
+            "--distance-m",
+            help="Separation distance, m: adds the 47 CFR 1.1307(b)(3)(i)(C) exemption test (fcc).",
+            show_default=False,
+        ),
     ] = None,
     as_json: Annotated[bool, typer.Option("--json", help="Print JSON instead of a table.")] = False,
 ) -> None:
@@ -69,34 +106,37 @@ def screen(
         screen_emitter,
     )
 
-    result = screen_emitter(ScreenRequest(
-        frequency_mhz=frequency_mhz, eirp_w=eirp_w, power_w=power_w, gain_dbi=gain_dbi, line_loss_db=line_loss_db,
-        model=model, kind=kind, h_beamwidth_deg=h_beamwidth_deg, v_beamwidth_deg=v_beamwidth_deg, length_m=length_m,
-        diameter_m=diameter_m, aperture_efficiency=aperture_efficiency, reflection=reflection, standard=standard,
-        distance_m=distance_m,
-    ))
+    result = screen_emitter(
+        ScreenRequest(
+            frequency_mhz=frequency_mhz,
+            eirp_w=eirp_w,
+            power_w=power_w,
+            gain_dbi=gain_dbi,
+            line_loss_db=line_loss_db,
+            model=model,
+            kind=kind,
+            h_beamwidth_deg=h_beamwidth_deg,
+            v_beamwidth_deg=v_beamwidth_deg,
+            length_m=length_m,
+            diameter_m=diameter_m,
+            aperture_efficiency=aperture_efficiency,
+            reflection=reflection,
+            standard=standard,
+            distance_m=distance_m,
+        )
+    )
     typer.echo(json.dumps(result, indent=2, allow_nan=False) if as_json else _text(result))
-
-
-
-
-
-
-
-
-
-
-
-
-
-
 
 
 def _text(r: dict[str, Any]) -> str:
     tiers = list(r["limits_w_m2"])
     lines = [
         f"Screening at {fmt(r['frequency_mhz'])} MHz: EIRP {fmt(r['eirp_w'])} W, ERP {fmt(r['erp_w'])} W"
-        + (f" (net power {fmt(r['net_power_w'])} W, gain {r['gain_dbi']:.1f} dBi)" if r["net_power_w"] is not None else ""),
+        + (
+            f" (net power {fmt(r['net_power_w'])} W, gain {r['gain_dbi']:.1f} dBi)"
+            if r["net_power_w"] is not None
+            else ""
+        ),
         f"Limits, {r['citation']}: "
         + ", ".join(f"{t.replace('_', ' ')} {fmt(v)} W/m²" for t, v in r["limits_w_m2"].items())
         + f"; ground reflection {r['reflection']} (x{r['reflection_factor']:g})",

@@ -25,8 +25,11 @@ def validate(
     json_out: JsonOption = False,
     patterns: Annotated[
         bool,
-        typer.Option("--patterns", help="Also integrate each pattern over the sphere (efficiency ∫G dΩ/4π) "
-                     "and check that gain and beamwidths can both be true (slower)."),
+        typer.Option(
+            "--patterns",
+            help="Also integrate each pattern over the sphere (efficiency ∫G dΩ/4π) "
+            "and check that gain and beamwidths can both be true (slower).",
+        ),
     ] = False,
 ) -> None:
     """Check site records; print each emitter with its EIRP and ERP, and any warnings."""
@@ -109,21 +112,29 @@ def _render(site, summary: dict) -> None:
     operators = list(dict.fromkeys(e.operator for e in site.emitters))
     for operator in operators:
         table.add_row(f"[bold]{esc(operator)}[/bold]", *[""] * (len(columns) - 1))
-        for e, s in zip(site.emitters, summary["emitters"]):
+        for e, s in zip(site.emitters, summary["emitters"], strict=True):
             if e.operator != operator:
                 continue
             row = [
-                f"  {esc(e.id)}", e.kind, fmt(e.frequency_mhz, 5), fmt(e.net_power_w), f"{e.gain_dbi:.1f}",
-                fmt(e.eirp_w), fmt(e.erp_w), f"{e.duty_factor:g}",
+                f"  {esc(e.id)}",
+                e.kind,
+                fmt(e.frequency_mhz, 5),
+                fmt(e.net_power_w),
+                f"{e.gain_dbi:.1f}",
+                fmt(e.eirp_w),
+                fmt(e.erp_w),
+                f"{e.duty_factor:g}",
             ]
             if with_patterns:
                 row.append(f"{s['pattern_efficiency']:.2f}")
             table.add_row(*row)
     out.print(table)
     if with_patterns:
-        out.print("∫G/4π: the pattern's gain integrated over the sphere; above 1 for envelopes (arrays over "
-                  "their scan, reference side-lobe patterns), near the radiation efficiency for a single beam.",
-                  markup=False)
+        out.print(
+            "∫G/4π: the pattern's gain integrated over the sphere; above 1 for envelopes (arrays over "
+            "their scan, reference side-lobe patterns), near the radiation efficiency for a single beam.",
+            markup=False,
+        )
     for warning in summary["warnings"]:
         out.print(f"warning: {warning}", markup=False)
 

@@ -200,7 +200,7 @@ class _TableModel(_Strict):
     @model_validator(mode="after")
     def _local_goes_with_whole_body(self):
         if self.local_table is not None and self.criterion != "whole-body":
-            raise ValueError("local_table is for a whole-body table (criterion = \"whole-body\")")
+            raise ValueError('local_table is for a whole-body table (criterion = "whole-body")')
         return self
 
 
@@ -262,8 +262,7 @@ def _cross_checks(model: _TableModel) -> list[str]:
         for i, band in enumerate(bands):
             if not band.f_min_mhz < band.f_max_mhz:
                 problems.append(
-                    f"{where}[{i}].f_max_mhz: must be greater than f_min_mhz "
-                    f"({band.f_max_mhz:g} <= {band.f_min_mhz:g})"
+                    f"{where}[{i}].f_max_mhz: must be greater than f_min_mhz ({band.f_max_mhz:g} <= {band.f_min_mhz:g})"
                 )
             if i > 0:
                 previous = bands[i - 1].f_max_mhz

@@ -57,14 +57,17 @@ def far_field_start_m(diameter_m, wavelength_m):
 def near_field_power_density(net_power_w, diameter_m, aperture_efficiency):
     r"""Maximum on-axis near-field power density, :math:`S_{nf} = 16\eta P/(\pi D^2)` [W/m²] (OET 65)."""
     d = np.asarray(diameter_m, dtype=float)
-    return 16.0 * np.asarray(aperture_efficiency, dtype=float) * np.asarray(net_power_w, dtype=float) / (math.pi * d * d)
+    return (
+        16.0 * np.asarray(aperture_efficiency, dtype=float) * np.asarray(net_power_w, dtype=float) / (math.pi * d * d)
+    )
 
 
 def dish_gain(diameter_m, wavelength_m, aperture_efficiency):
     r"""Gain of a dish, :math:`G = \eta(\pi D/\lambda)^2` [linear] (OET 65)."""
-    return np.asarray(aperture_efficiency, dtype=float) * (
-        math.pi * np.asarray(diameter_m, dtype=float) / np.asarray(wavelength_m, dtype=float)
-    ) ** 2
+    return (
+        np.asarray(aperture_efficiency, dtype=float)
+        * (math.pi * np.asarray(diameter_m, dtype=float) / np.asarray(wavelength_m, dtype=float)) ** 2
+    )
 
 
 def on_axis_power_density(net_power_w, diameter_m, wavelength_m, aperture_efficiency, distance_m, gain_linear=None):
@@ -99,7 +102,11 @@ def on_axis_power_density(net_power_w, diameter_m, wavelength_m, aperture_effici
         return np.where(
             r <= r_nf,
             s_nf,
-            np.where(r < r_ff, s_nf * r_nf / np.maximum(r, r_nf), net_power_w * gain_linear / (4.0 * math.pi * np.maximum(r, r_ff) ** 2)),
+            np.where(
+                r < r_ff,
+                s_nf * r_nf / np.maximum(r, r_nf),
+                net_power_w * gain_linear / (4.0 * math.pi * np.maximum(r, r_ff) ** 2),
+            ),
         )
 
 

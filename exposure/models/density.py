@@ -118,12 +118,16 @@ def model_for(antenna: Antenna, model: str = "auto") -> str:
         return "synthetic" if antenna.length_m else "spherical"
     if model == "endfire":
         if antenna.kind != "directional":
-            raise InputError(f"{where}: the endfire model is for directional antennas (Yagi, log-periodic, horn, patch), not a {antenna.kind}")
+            raise InputError(
+                f"{where}: the endfire model is for directional antennas (Yagi, log-periodic, horn, patch), not a {antenna.kind}"
+            )
         if not antenna.length_m:
             raise InputError(f"{where}: the endfire model needs length_m (the antenna's length along boresight)")
     if model in ("cylindrical", "synthetic"):
         if antenna.kind in ("dish", "directional"):
-            raise InputError(f"{where}: the {model} model is for panels, omnis and arrays, not a {antenna.kind}; use {'aperture' if antenna.kind == 'dish' else 'endfire'} or spherical")
+            raise InputError(
+                f"{where}: the {model} model is for panels, omnis and arrays, not a {antenna.kind}; use {'aperture' if antenna.kind == 'dish' else 'endfire'} or spherical"
+            )
         if not antenna.length_m:
             raise InputError(f"{where}: the {model} model needs length_m (the radiating aperture length)")
     if model == "aperture" and not antenna.diameter_m:
@@ -146,7 +150,9 @@ def _kernel(antenna: Antenna, model: str, auto: bool, pattern: Pattern, spatial_
     if model == "synthetic":
         lam = antenna.wavelength_m
         peak = auto and spatial_peak
-        length = synthetic.effective_length_m(antenna.length_m, lam, pattern.v_beamwidth_deg) if auto else antenna.length_m
+        length = (
+            synthetic.effective_length_m(antenna.length_m, lam, pattern.v_beamwidth_deg) if auto else antenna.length_m
+        )
         return lambda f, r, u: synthetic.synthetic_kernel(
             pattern, eirp, length, lam, f, r, u, r_min, cap_spherical=auto, spatial_peak=peak
         )

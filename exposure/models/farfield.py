@@ -13,7 +13,13 @@ import numpy as np
 
 from exposure.patterns import Pattern
 
-__all__ = ["spherical_power_density", "spherical_kernel", "endfire_kernel", "minimum_distance_m", "MAX_MINIMUM_DISTANCE_M"]
+__all__ = [
+    "spherical_power_density",
+    "spherical_kernel",
+    "endfire_kernel",
+    "minimum_distance_m",
+    "MAX_MINIMUM_DISTANCE_M",
+]
 
 MAX_MINIMUM_DISTANCE_M = 0.1
 """Upper bound of :func:`minimum_distance_m` [m]."""

@@ -1,5 +1,4 @@
-"""An emitter prepared for evaluation: its inputs checked, its pattern and frame built once.
-"""
+"""An emitter prepared for evaluation: its inputs checked, its pattern and frame built once."""
 
 from __future__ import annotations
 

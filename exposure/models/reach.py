@@ -141,7 +141,9 @@ def boresight_distance_to_limit(
     return last_crossings(along, scan, [limit], refine=64, tolerance=1e-4)[0]
 
 
-def ray_extents(antenna: Antenna, direction: np.ndarray, limits_w_m2: Sequence[float], reflection: float) -> list[float]:
+def ray_extents(
+    antenna: Antenna, direction: np.ndarray, limits_w_m2: Sequence[float], reflection: float
+) -> list[float]:
     """Largest distance [m] along *direction* from the centre of radiation at which the
     emitter alone reaches each of *limits_w_m2*; 0 where it never does. One scan serves
     every limit.

@@ -91,7 +91,9 @@ def _beamwidth_rad(pattern: Pattern) -> float:
     return min(max(math.radians(pattern.v_beamwidth_deg), 1e-3), 0.5 * math.pi)
 
 
-def source_count(length_m: float, wavelength_m: float, pattern: Pattern, angular_spacing: float = ANGULAR_SPACING) -> int:
+def source_count(
+    length_m: float, wavelength_m: float, pattern: Pattern, angular_spacing: float = ANGULAR_SPACING
+) -> int:
     r"""Most sub-sources for an aperture (module docstring): :math:`N_{max}` in [2, 512]."""
     angular = length_m / (angular_spacing * wavelength_m * _beamwidth_rad(pattern))
     return int(min(max(math.ceil(max(2.0 * length_m / wavelength_m, angular) - 1e-9), 2), MAX_SOURCES))

@@ -23,8 +23,6 @@ NEPER_PER_DB = math.log(10.0) / 10.0
 """Power attenuation in nepers per dB: ``gain = exp(-NEPER_PER_DB * attenuation_db)``."""
 
 
-
-
 class Pattern:
     """A relative pattern: gain ≤ 1 as a function of antenna-frame direction.
 

@@ -77,7 +77,9 @@ def nominal_pattern(antenna: Antenna) -> Pattern:
             pattern.v_scan_deg,
         )
     if isinstance(pattern, OmniPattern):
-        return OmniPattern(pattern.v_beamwidth_deg, max(pattern.sidelobe_floor_db, NOMINAL_SIDELOBE_FLOOR_DB), pattern.elec_tilt_deg)
+        return OmniPattern(
+            pattern.v_beamwidth_deg, max(pattern.sidelobe_floor_db, NOMINAL_SIDELOBE_FLOOR_DB), pattern.elec_tilt_deg
+        )
     if isinstance(pattern, TabulatedPattern):
         return TabulatedPattern(pattern.cuts)
     return pattern
@@ -133,7 +135,9 @@ def check_gain_beamwidths(antenna: Antenna) -> str | None:
     where = f"emitter {antenna.id}"
     if antenna.kind == "dish":
         if antenna.diameter_m:
-            expected = 10.0 * math.log10(antenna.aperture_efficiency * (math.pi * antenna.diameter_m / antenna.wavelength_m) ** 2)
+            expected = 10.0 * math.log10(
+                antenna.aperture_efficiency * (math.pi * antenna.diameter_m / antenna.wavelength_m) ** 2
+            )
             if abs(antenna.gain_dbi - expected) > _RULE_MARGIN_DB:
                 messages.append(
                     f"{where}: gain {antenna.gain_dbi:.1f} dBi differs from {expected:.1f} dBi of a "
@@ -141,7 +145,12 @@ def check_gain_beamwidths(antenna: Antenna) -> str | None:
                     "(OET 65: G = eta (pi D / lambda)^2)"
                 )
         return "; ".join(messages) or None
-    if antenna.kind in ("panel", "array") and antenna.pattern is None and antenna.h_beamwidth_deg and antenna.v_beamwidth_deg:
+    if (
+        antenna.kind in ("panel", "array")
+        and antenna.pattern is None
+        and antenna.h_beamwidth_deg
+        and antenna.v_beamwidth_deg
+    ):
         rule = 10.0 * math.log10(BEAMWIDTH_DIRECTIVITY_DEG2 / (antenna.h_beamwidth_deg * antenna.v_beamwidth_deg))
         if antenna.gain_dbi > rule + _RULE_MARGIN_DB:
             messages.append(

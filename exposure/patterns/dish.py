@@ -1,5 +1,4 @@
-"""The reference pattern of fixed-link dishes: ITU-R F.699.
-"""
+"""The reference pattern of fixed-link dishes: ITU-R F.699."""
 
 from __future__ import annotations
 
@@ -61,11 +60,11 @@ def f699_gain_dbi(off_axis_deg, diameter_over_wavelength: float, max_gain_dbi: f
     phi_m = 20.0 / dl * math.sqrt(max(gmax - g1, 0.0))
     if dl > 100.0:
         phi_r = 15.85 * dl**-0.6
-        side = lambda p: 32.0 - 25.0 * np.log10(p)  # noqa: E731
+        side = lambda p: 32.0 - 25.0 * np.log10(p)
         back = -10.0
     else:
         phi_r = 100.0 / dl
-        side = lambda p: 52.0 - 10.0 * math.log10(dl) - 25.0 * np.log10(p)  # noqa: E731
+        side = lambda p: 52.0 - 10.0 * math.log10(dl) - 25.0 * np.log10(p)
         back = 10.0 - 10.0 * math.log10(dl)
     with np.errstate(divide="ignore"):
         g = np.where(

@@ -1,5 +1,4 @@
-"""Which pattern an emitter gets (:func:`pattern_for`), and one-call gains for tests and tools.
-"""
+"""Which pattern an emitter gets (:func:`pattern_for`), and one-call gains for tests and tools."""
 
 from __future__ import annotations
 

@@ -75,8 +75,7 @@ def validate_cuts(cuts: PatternCuts) -> list[str]:
             continue
         if plane == "h" and _max_periodic_gap(w) > _MAX_GAP_DEG:
             problems.append(
-                f"plane h: the cut must go all round (-180..180 deg); it has a gap of "
-                f"{_max_periodic_gap(w):.0f} deg"
+                f"plane h: the cut must go all round (-180..180 deg); it has a gap of {_max_periodic_gap(w):.0f} deg"
             )
         if plane == "v" and (w.min() > -90.0 or w.max() < 90.0):
             problems.append(

@@ -87,9 +87,15 @@ def emitter_labels(assessment, labels: Labels, base: float, region=None) -> list
             continue
         width, height = labels.size(e.id, 6.5)
         if e.azimuth_deg is None:
-            options = [((x + dx, y + dy), ha, va, None) for dx, dy, ha, va in (
-                (0.3 * base, -0.3 * base, "left", "top"), (-0.3 * base, -0.3 * base, "right", "top"),
-                (0.3 * base, 0.3 * base, "left", "bottom"), (-0.3 * base, 0.3 * base, "right", "bottom"))]
+            options = [
+                ((x + dx, y + dy), ha, va, None)
+                for dx, dy, ha, va in (
+                    (0.3 * base, -0.3 * base, "left", "top"),
+                    (-0.3 * base, -0.3 * base, "right", "top"),
+                    (0.3 * base, 0.3 * base, "left", "bottom"),
+                    (-0.3 * base, 0.3 * base, "right", "bottom"),
+                )
+            ]
         else:
             az = math.radians(e.azimuth_deg)
             sx, sy = math.sin(az), math.cos(az)
@@ -100,7 +106,7 @@ def emitter_labels(assessment, labels: Labels, base: float, region=None) -> list
                 end = (x + factor * base * sx, y + factor * base * sy)
                 gap = 0.12 * base
                 options.append(((end[0] + gap * sx, end[1] + gap * sy), ha, va, end))
-        for at, ha, va, tip in options:  # the chosen option's own arrow (None for an omni)
+        for at, ha, va, tip in options:  # noqa: B007 - the chosen option's own arrow (None for an omni), used below
             box = _box_at(*at, width, height, ha, va)
             if labels.free(box):
                 break
@@ -118,8 +124,12 @@ def work_labels(assessment, labels: Labels, base: float, region=None) -> list[tu
             continue
         width, height = labels.size(f"W{n}", 6.5)
         d = 0.18 * base
-        for dx, dy, ha, va in ((d, d, "left", "bottom"), (-d, d, "right", "bottom"), (d, -d, "left", "top"),
-                               (-d, -d, "right", "top")):
+        for dx, dy, ha, va in (
+            (d, d, "left", "bottom"),
+            (-d, d, "right", "bottom"),
+            (d, -d, "left", "top"),
+            (-d, -d, "right", "top"),
+        ):
             box = _box_at(x + dx, y + dy, width, height, ha, va)
             if labels.free(box):
                 break
@@ -182,8 +192,12 @@ def surface_labels(assessment, labels: Labels, region=None) -> list[tuple]:
             cx, cy = candidates[0]
             anchor = (cx, cy)
             gap = 1.2 * height
-            for at in ((cx, poly[:, 1].max() + gap), (cx, poly[:, 1].min() - gap),
-                       (poly[:, 0].max() + gap + width / 2, cy), (poly[:, 0].min() - gap - width / 2, cy)):
+            for at in (
+                (cx, poly[:, 1].max() + gap),
+                (cx, poly[:, 1].min() - gap),
+                (poly[:, 0].max() + gap + width / 2, cy),
+                (poly[:, 0].min() - gap - width / 2, cy),
+            ):
                 box = _box_at(*at, width, height, "center", "center")
                 if labels.free(box):
                     break

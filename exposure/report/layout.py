@@ -42,19 +42,33 @@ def styles() -> dict:
         "cell": ParagraphStyle("cell", parent=base, fontSize=7.2, leading=8.8, spaceAfter=0),
         "cell_r": ParagraphStyle("cell_r", parent=base, fontSize=7.2, leading=8.8, spaceAfter=0, alignment=2),
         "head": ParagraphStyle("head", parent=base, fontName=f"{FONT}-Bold", fontSize=7.2, leading=8.8, spaceAfter=0),
-        "head_r": ParagraphStyle("head_r", parent=base, fontName=f"{FONT}-Bold", fontSize=7.2, leading=8.8,
-                                 spaceAfter=0, alignment=2),
-        "title": ParagraphStyle("title", parent=base, fontName=f"{FONT}-Bold", fontSize=17, leading=21,
-                                textColor=accent, spaceAfter=2),
+        "head_r": ParagraphStyle(
+            "head_r", parent=base, fontName=f"{FONT}-Bold", fontSize=7.2, leading=8.8, spaceAfter=0, alignment=2
+        ),
+        "title": ParagraphStyle(
+            "title", parent=base, fontName=f"{FONT}-Bold", fontSize=17, leading=21, textColor=accent, spaceAfter=2
+        ),
         "subtitle": ParagraphStyle("subtitle", parent=base, fontSize=12, leading=15, spaceAfter=8),
-        "h1": ParagraphStyle("h1", parent=base, fontName=f"{FONT}-Bold", fontSize=12.5, leading=15.5,
-                             textColor=accent, spaceBefore=10, spaceAfter=5),
-        "h2": ParagraphStyle("h2", parent=base, fontName=f"{FONT}-Bold", fontSize=9.6, leading=12,
-                             spaceBefore=6, spaceAfter=3),
-        "verdict": ParagraphStyle("verdict", parent=base, fontName=f"{FONT}-Bold", fontSize=13, leading=16,
-                                  spaceAfter=3),
+        "h1": ParagraphStyle(
+            "h1",
+            parent=base,
+            fontName=f"{FONT}-Bold",
+            fontSize=12.5,
+            leading=15.5,
+            textColor=accent,
+            spaceBefore=10,
+            spaceAfter=5,
+        ),
+        "h2": ParagraphStyle(
+            "h2", parent=base, fontName=f"{FONT}-Bold", fontSize=9.6, leading=12, spaceBefore=6, spaceAfter=3
+        ),
+        "verdict": ParagraphStyle(
+            "verdict", parent=base, fontName=f"{FONT}-Bold", fontSize=13, leading=16, spaceAfter=3
+        ),
         "bullet": ParagraphStyle("bullet", parent=base, leftIndent=12, bulletIndent=2),
-        "caption": ParagraphStyle("caption", parent=base, fontSize=7.6, leading=9.6, textColor=colors.HexColor("#333333")),
+        "caption": ParagraphStyle(
+            "caption", parent=base, fontSize=7.6, leading=9.6, textColor=colors.HexColor("#333333")
+        ),
     }
 
 
@@ -89,8 +103,16 @@ class Builder:
         for item in items:
             self.add(Paragraph(item, self.st[style], bulletText="•"))
 
-    def table(self, header: list[str], rows: list[list[str]], widths: list[float], *, right: set[int] = frozenset(),
-              group_rows: tuple[int, ...] = (), zebra: bool = True):
+    def table(
+        self,
+        header: list[str],
+        rows: list[list[str]],
+        widths: list[float],
+        *,
+        right: set[int] = frozenset(),
+        group_rows: tuple[int, ...] = (),
+        zebra: bool = True,
+    ):
         """A table of Paragraph cells; *widths* as fractions of the frame width."""
         from reportlab.lib import colors
         from reportlab.platypus import Table, TableStyle
@@ -114,7 +136,10 @@ class Builder:
             ("RIGHTPADDING", (0, 0), (-1, -1), 3),
         ]
         for r in group_rows:
-            commands += [("SPAN", (0, r + 1), (-1, r + 1)), ("BACKGROUND", (0, r + 1), (-1, r + 1), colors.HexColor("#f3f5f6"))]
+            commands += [
+                ("SPAN", (0, r + 1), (-1, r + 1)),
+                ("BACKGROUND", (0, r + 1), (-1, r + 1), colors.HexColor("#f3f5f6")),
+            ]
         if zebra and not group_rows:
             for r in range(2, len(data), 2):
                 commands.append(("BACKGROUND", (0, r), (-1, r), colors.HexColor("#f7f9f9")))
@@ -128,14 +153,18 @@ def boxed(builder: Builder, flowables: list, colour: str, tint: str):
     from reportlab.platypus import Table, TableStyle
 
     box = Table([[flowables]], colWidths=[builder.width], hAlign="LEFT")
-    box.setStyle(TableStyle([
-        ("BACKGROUND", (0, 0), (-1, -1), colors.HexColor(tint)),
-        ("LINEBEFORE", (0, 0), (0, -1), 5, colors.HexColor(colour)),
-        ("BOX", (0, 0), (-1, -1), 0.4, colors.HexColor(colour)),
-        ("LEFTPADDING", (0, 0), (-1, -1), 10),
-        ("TOPPADDING", (0, 0), (-1, -1), 6),
-        ("BOTTOMPADDING", (0, 0), (-1, -1), 6),
-    ]))
+    box.setStyle(
+        TableStyle(
+            [
+                ("BACKGROUND", (0, 0), (-1, -1), colors.HexColor(tint)),
+                ("LINEBEFORE", (0, 0), (0, -1), 5, colors.HexColor(colour)),
+                ("BOX", (0, 0), (-1, -1), 0.4, colors.HexColor(colour)),
+                ("LEFTPADDING", (0, 0), (-1, -1), 10),
+                ("TOPPADDING", (0, 0), (-1, -1), 6),
+                ("BOTTOMPADDING", (0, 0), (-1, -1), 6),
+            ]
+        )
+    )
     return box
 
 
@@ -155,7 +184,7 @@ def numbered_canvas(site_id: str):
             super().__init__(*args, **kwargs)
             self._pages: list[dict] = []
 
-        def showPage(self):  # noqa: N802 (reportlab's name)
+        def showPage(self):
             self._pages.append(dict(self.__dict__))
             self._startPage()
 

@@ -68,13 +68,27 @@ def render_pdf(assessment: Assessment, *, date: _dt.date | None = None) -> bytes
     doc = BaseDocTemplate(
         buffer,
         pagesize=pagesize,
-        leftMargin=margin, rightMargin=margin, topMargin=margin, bottomMargin=0.75 * inch,
+        leftMargin=margin,
+        rightMargin=margin,
+        topMargin=margin,
+        bottomMargin=0.75 * inch,
         title=f"RF exposure compliance worksheet: {assessment.site_name}",
-        author="", subject=f"site {assessment.site_id}; {text.FOOTER_NOTE}",
-        creator=f"exposure {__version__}", invariant=1,
+        author="",
+        subject=f"site {assessment.site_id}; {text.FOOTER_NOTE}",
+        creator=f"exposure {__version__}",
+        invariant=1,
     )
-    frame = Frame(doc.leftMargin, doc.bottomMargin, doc.width, doc.height, id="body", leftPadding=0, rightPadding=0,
-                  topPadding=0, bottomPadding=0)
+    frame = Frame(
+        doc.leftMargin,
+        doc.bottomMargin,
+        doc.width,
+        doc.height,
+        id="body",
+        leftPadding=0,
+        rightPadding=0,
+        topPadding=0,
+        bottomPadding=0,
+    )
     doc.addPageTemplates([PageTemplate(id="page", frames=[frame])])
     b = Builder(doc.width)
     title_block(b, assessment, date)

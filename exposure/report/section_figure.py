@@ -8,7 +8,7 @@ import math
 
 import numpy as np
 
-from exposure.report.maps import (
+from exposure.report.figure import (
     CMAP,
     GP_LINE,
     HEAD_LINE,
@@ -82,8 +82,11 @@ def _person(ax, s: float, base: float, height: float, exaggeration: float) -> No
     ax.plot([s - w * 0.5, s, s + w * 0.5], [base, base + 0.47 * h, base], **kw)  # legs
     ax.plot([s, s], [base + 0.47 * h, base + 0.86 * h], **kw)  # trunk
     ax.plot([s - w * 0.55, s, s + w * 0.55], [base + 0.50 * h, base + 0.80 * h, base + 0.50 * h], **kw)  # arms
-    ax.add_patch(Ellipse((s, base + 0.93 * h), 0.55 * w, 0.14 * h, facecolor="white", edgecolor="black",
-                         linewidth=1.1, zorder=81))
+    ax.add_patch(
+        Ellipse(
+            (s, base + 0.93 * h), 0.55 * w, 0.14 * h, facecolor="white", edgecolor="black", linewidth=1.1, zorder=81
+        )
+    )
 
 
 def section_figure(
@@ -122,8 +125,16 @@ def section_figure(
     from exposure.report.fonts import matplotlib_rc
 
     with matplotlib.rc_context(matplotlib_rc()):
-        return _section_figure(s_m, z_m, ratio, emitter=emitter, assessment=assessment, body_height_m=body_height_m,
-                               width_in=width_in, max_height_in=max_height_in)
+        return _section_figure(
+            s_m,
+            z_m,
+            ratio,
+            emitter=emitter,
+            assessment=assessment,
+            body_height_m=body_height_m,
+            width_in=width_in,
+            max_height_in=max_height_in,
+        )
 
 
 def _section_figure(s_m, z_m, ratio, *, emitter, assessment, body_height_m, width_in, max_height_in):
@@ -146,9 +157,16 @@ def _section_figure(s_m, z_m, ratio, *, emitter, assessment, body_height_m, widt
     fig.set_layout_engine("constrained")
     ax = fig.add_subplot()
     pct_range = colour_range(assessment)
-    mesh = ax.pcolormesh(s_m, z_m, percent(ratio["general_public"], pct_range), cmap=CMAP, norm=norm(pct_range),
-                         shading="nearest",
-                         rasterized=True, zorder=1)
+    mesh = ax.pcolormesh(
+        s_m,
+        z_m,
+        percent(ratio["general_public"], pct_range),
+        cmap=CMAP,
+        norm=norm(pct_range),
+        shading="nearest",
+        rasterized=True,
+        zorder=1,
+    )
     drawn = {
         "general_public": contour(ax, s_m, z_m, ratio["general_public"], 1.0, GP_LINE, 5),
         "occupational": contour(ax, s_m, z_m, ratio["occupational"], 1.0, OCC_LINE, 6, casing=True),
@@ -160,24 +178,53 @@ def _section_figure(s_m, z_m, ratio, *, emitter, assessment, body_height_m, widt
     for surface, mask in crossings:
         for i, j in _runs(mask):
             a, b = s_m[i] - ds / 2, s_m[j] + ds / 2
-            ax.fill_between([a, b], [surface.elevation_m] * 2, [z_m.min()] * 2, color="#9a9a9a", alpha=0.9,
-                            zorder=7, linewidth=0)
+            ax.fill_between(
+                [a, b], [surface.elevation_m] * 2, [z_m.min()] * 2, color="#9a9a9a", alpha=0.9, zorder=7, linewidth=0
+            )
             ax.plot([a, b], [surface.elevation_m] * 2, color="black", linewidth=1.4, zorder=8)
-            ax.plot([a, b], [surface.elevation_m + body_height_m] * 2, color=HEAD_LINE, linewidth=1.0,
-                    linestyle=(0, (4, 2)), zorder=8)
+            ax.plot(
+                [a, b],
+                [surface.elevation_m + body_height_m] * 2,
+                color=HEAD_LINE,
+                linewidth=1.0,
+                linestyle=(0, (4, 2)),
+                zorder=8,
+            )
     worst = worst_standing_spot(s_m, z_m, ratio["general_public"], crossings, body_height_m)
     if worst is not None:
         _person(ax, worst[0], worst[1], body_height_m, exaggeration)
-        ax.annotate(f"{body_height_m:g} m", (worst[0], worst[1] + body_height_m), xytext=(5, 0),
-                    textcoords="offset points", ha="left", va="center", fontsize=6, zorder=82,
-                    bbox={"boxstyle": "round,pad=0.1", "facecolor": "white", "edgecolor": "none", "alpha": 0.8})
-    ax.plot([0], [emitter.position_m[2]], marker="^" if emitter.azimuth_deg is not None else "o", color="black",
-            markeredgecolor="white", markersize=6, zorder=90)
+        ax.annotate(
+            f"{body_height_m:g} m",
+            (worst[0], worst[1] + body_height_m),
+            xytext=(5, 0),
+            textcoords="offset points",
+            ha="left",
+            va="center",
+            fontsize=6,
+            zorder=82,
+            bbox={"boxstyle": "round,pad=0.1", "facecolor": "white", "edgecolor": "none", "alpha": 0.8},
+        )
+    ax.plot(
+        [0],
+        [emitter.position_m[2]],
+        marker="^" if emitter.azimuth_deg is not None else "o",
+        color="black",
+        markeredgecolor="white",
+        markersize=6,
+        zorder=90,
+    )
     person_near = worst is not None and abs(worst[0]) < 0.06 * s_span  # keep the id clear of the figure
-    ax.annotate(emitter.id, (0, emitter.position_m[2]), xytext=(-5, 5) if person_near else (4, 4),
-                textcoords="offset points", ha="right" if person_near else "left", fontsize=7,
-                fontweight="bold", zorder=91,
-                bbox={"boxstyle": "round,pad=0.15", "facecolor": "white", "edgecolor": "none", "alpha": 0.85})
+    ax.annotate(
+        emitter.id,
+        (0, emitter.position_m[2]),
+        xytext=(-5, 5) if person_near else (4, 4),
+        textcoords="offset points",
+        ha="right" if person_near else "left",
+        fontsize=7,
+        fontweight="bold",
+        zorder=91,
+        bbox={"boxstyle": "round,pad=0.15", "facecolor": "white", "edgecolor": "none", "alpha": 0.85},
+    )
     ax.set_xlim(float(s_m.min()), float(s_m.max()))
     ax.set_ylim(float(z_m.min()), float(z_m.max()))
     ax.set_aspect(exaggeration)
@@ -189,8 +236,14 @@ def _section_figure(s_m, z_m, ratio, *, emitter, assessment, body_height_m, widt
         Line2D([], [], color="black", linewidth=1.3, label="100 % general public"),
         Line2D([], [], color=OCC_COLOUR, linewidth=1.6, label="100 % occupational"),
         Line2D([], [], color="black", linewidth=1.4, label="walking surface"),
-        Line2D([], [], color=HEAD_LINE, linewidth=1.0, linestyle=(0, (4, 2)),
-               label=f"{body_height_m:g} m above the surface"),
+        Line2D(
+            [],
+            [],
+            color=HEAD_LINE,
+            linewidth=1.0,
+            linestyle=(0, (4, 2)),
+            label=f"{body_height_m:g} m above the surface",
+        ),
     ]
     fig.legend(handles=handles, loc="outside lower center", ncol=4, fontsize=6.5, frameon=False)
     return *png(fig), {"exaggeration": exaggeration, "worst": worst, "drawn": drawn}

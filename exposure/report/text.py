@@ -48,8 +48,10 @@ VERDICT_SENTENCES = {
 
 def zone_name(zone) -> str:
     """How the worksheet names a zone: ``category 3 zone on Main roof near (33.0, 14.0) m, 8.4 m²``."""
-    return (f"category {zone.category} zone on {zone.surface} near ({number(zone.max_at_m[0], 1)}, "
-            f"{number(zone.max_at_m[1], 1)}) m, {area(zone.area_m2)} m²")
+    return (
+        f"category {zone.category} zone on {zone.surface} near ({number(zone.max_at_m[0], 1)}, "
+        f"{number(zone.max_at_m[1], 1)}) m, {area(zone.area_m2)} m²"
+    )
 
 
 def next_steps(assessment) -> list[str]:
@@ -58,8 +60,11 @@ def next_steps(assessment) -> list[str]:
     public_over = [s for s in assessment.surfaces if s.compliant is False and s.governing_tier == "general_public"]
     zones = list(getattr(assessment, "zones", ()))
     for s in public_over:
-        scale = (f"; reducing every emitter to {number(s.headroom_factor, 2)} × its power would be enough"
-                 if s.headroom_factor else "")
+        scale = (
+            f"; reducing every emitter to {number(s.headroom_factor, 2)} × its power would be enough"
+            if s.headroom_factor
+            else ""
+        )
         for z in (z for z in zones if z.surface == s.name and z.category == 2):
             who = ", ".join(z.responsible_emitters) or "the emitters reaching it"
             steps.append(
@@ -71,10 +76,15 @@ def next_steps(assessment) -> list[str]:
     cores = [z for z in zones if z.category == 4]
     for z in zones:
         inner = [c for c in cores if c.surface == z.surface and c.polygon.intersects(z.polygon)]
-        if z.category == 3 or (z.category == 4 and not any(
-                o.category == 3 and o.surface == z.surface and o.polygon.intersects(z.polygon) for o in zones)):
-            core = (f", with a category 4 core of {area(sum(c.area_m2 for c in inner))} m² (WARNING signs at its edge)"
-                    if z.category == 3 and inner else "")
+        if z.category == 3 or (
+            z.category == 4
+            and not any(o.category == 3 and o.surface == z.surface and o.polygon.intersects(z.polygon) for o in zones)
+        ):
+            core = (
+                f", with a category 4 core of {area(sum(c.area_m2 for c in inner))} m² (WARNING signs at its edge)"
+                if z.category == 3 and inner
+                else ""
+            )
             steps.append(
                 f"Treat the {zone_name(z)} (up to {percent(z.max_ratio['occupational'])} of the occupational "
                 f"limit{core}) as no-entry while transmitting: mark it and post {z.word} signs; before anyone "
@@ -105,16 +115,32 @@ def next_steps(assessment) -> list[str]:
 # --- controls: the four exposure categories and their signs, in our own words --------------
 
 CATEGORIES = (
-    (1, "INFORMATION", "At or below the general-public limit.",
-     "An information sign is optional (at antennas people can approach)."),
-    (2, "NOTICE", "Above the general-public limit, within the occupational limit.",
-     "Positive access control: only people aware of the exposure may enter; NOTICE signs at the ways in."),
-    (3, "CAUTION", "Above the occupational limit, up to ten times it.",
-     "Boundary marked (signs, chains, railings, contrasting paint or diagrams); RF safety training; "
-     "power-down and lockout, or time averaging, before anyone enters."),
-    (4, "WARNING", "More than ten times the occupational limit.",
-     "As category 3, and no one enters while transmitting; DANGER instead of WARNING where immediate "
-     "injury such as RF burns is possible (at the antennas)."),
+    (
+        1,
+        "INFORMATION",
+        "At or below the general-public limit.",
+        "An information sign is optional (at antennas people can approach).",
+    ),
+    (
+        2,
+        "NOTICE",
+        "Above the general-public limit, within the occupational limit.",
+        "Positive access control: only people aware of the exposure may enter; NOTICE signs at the ways in.",
+    ),
+    (
+        3,
+        "CAUTION",
+        "Above the occupational limit, up to ten times it.",
+        "Boundary marked (signs, chains, railings, contrasting paint or diagrams); RF safety training; "
+        "power-down and lockout, or time averaging, before anyone enters.",
+    ),
+    (
+        4,
+        "WARNING",
+        "More than ten times the occupational limit.",
+        "As category 3, and no one enters while transmitting; DANGER instead of WARNING where immediate "
+        "injury such as RF burns is possible (at the antennas).",
+    ),
 )
 """(category, sign word, where, what it asks): 47 CFR § 1.1307(b) as amended by FCC 19-126
 (85 FR 81472, 2020) and IEEE C95.7; categories three and four confirmed, one and two from memory."""

@@ -43,7 +43,9 @@ class ScreenRequest:
     distance_m: float | None = None
 
 
-def _check(name: str, value: float | None, *, low: float = 0.0, high: float = math.inf, low_inclusive: bool = False) -> None:
+def _check(
+    name: str, value: float | None, *, low: float = 0.0, high: float = math.inf, low_inclusive: bool = False
+) -> None:
     if value is None:
         return
     ok = math.isfinite(value) and (value >= low if low_inclusive else value > low) and value <= high
@@ -210,7 +212,9 @@ def screen_emitter(o: ScreenRequest) -> dict[str, Any]:
                 "note": ex.note,
             }
         else:
-            result["exemption_note"] = "--distance-m: the exemption test is that of 47 CFR 1.1307(b)(3), for --standard fcc only"
+            result["exemption_note"] = (
+                "--distance-m: the exemption test is that of 47 CFR 1.1307(b)(3), for --standard fcc only"
+            )
     return result
 
 
@@ -260,7 +264,10 @@ def _needs(o: ScreenRequest, kind: str, gain_known: bool) -> dict[str, str]:
     def join(*parts: str) -> str:
         return ", ".join(p for p in parts if p)
 
-    not_linear = {"dish": "a panel, omni or array (not a dish)", "directional": "a panel, omni or array (not --kind directional)"}.get(kind, "")
+    not_linear = {
+        "dish": "a panel, omni or array (not a dish)",
+        "directional": "a panel, omni or array (not --kind directional)",
+    }.get(kind, "")
     return {
         "spherical": "",
         "cylindrical": not_linear or join("" if o.length_m is not None else "--length-m", power),
@@ -273,7 +280,9 @@ def _needs(o: ScreenRequest, kind: str, gain_known: bool) -> dict[str, str]:
         "aperture": "" if kind == "dish" else "--diameter-m",
         "endfire": "--kind directional"
         if kind != "directional"
-        else join("" if o.length_m is not None else "--length-m", "" if o.v_beamwidth_deg is not None else "--v-beamwidth-deg"),
+        else join(
+            "" if o.length_m is not None else "--length-m", "" if o.v_beamwidth_deg is not None else "--v-beamwidth-deg"
+        ),
     }
 
 

@@ -139,9 +139,7 @@ def mpe_erp_threshold_w(frequency_mhz: float, distance_m: float) -> float:
     for low, high, rule in _MPE_TABLE:
         if low <= f <= high:
             return float(rule(r, f))
-    raise OutOfRangeError(
-        f"frequency {frequency_mhz:g} MHz is outside 0.3-100000 MHz of {CITATION} (i)(C), Table 1"
-    )
+    raise OutOfRangeError(f"frequency {frequency_mhz:g} MHz is outside 0.3-100000 MHz of {CITATION} (i)(C), Table 1")
 
 
 def mpe_exemption(erp_w: float, frequency_mhz: float, distance_m: float) -> Exemption:

@@ -70,11 +70,15 @@ def grid_budget_problem(
         return float(f"{grid_m * math.sqrt(count / budget) * 1.01:.2g}")
 
     if largest > MAX_CELLS_PER_SURFACE:
-        return (f"grid_m {grid_m:g} m gives surface {largest_name!r} {largest:,} map cells, more than the "
-                f"{MAX_CELLS_PER_SURFACE:,} one surface may have; use grid_m {max(finer(largest, MAX_CELLS_PER_SURFACE), low):g} m "
-                "or more (or check the outline's units)")
+        return (
+            f"grid_m {grid_m:g} m gives surface {largest_name!r} {largest:,} map cells, more than the "
+            f"{MAX_CELLS_PER_SURFACE:,} one surface may have; use grid_m {max(finer(largest, MAX_CELLS_PER_SURFACE), low):g} m "
+            "or more (or check the outline's units)"
+        )
     if evaluations > MAX_EVALUATIONS:
-        return (f"grid_m {grid_m:g} m needs {evaluations:,} point-emitter evaluations ({heights} heights, "
-                f"{emitters} emitters), more than the {MAX_EVALUATIONS:,} of the grid budget; use grid_m "
-                f"{max(finer(evaluations, MAX_EVALUATIONS), low):g} m or more")
+        return (
+            f"grid_m {grid_m:g} m needs {evaluations:,} point-emitter evaluations ({heights} heights, "
+            f"{emitters} emitters), more than the {MAX_EVALUATIONS:,} of the grid budget; use grid_m "
+            f"{max(finer(evaluations, MAX_EVALUATIONS), low):g} m or more"
+        )
     return None

@@ -5,7 +5,7 @@ their keys (gain, net power, EIRP and ERP at full output and time-averaged).
 from __future__ import annotations
 
 import math
-from typing import Annotated, Literal, Union
+from typing import Annotated, Literal
 
 from pydantic import (
     AfterValidator,
@@ -45,7 +45,14 @@ class EmitterBase(Strict):
 
     id: EmitterId
     operator: Name
-    frequency_mhz: Annotated[float, Field(ge=0.1, le=300_000, description="Carrier frequency [MHz], 0.1 MHz (the lowest edge of the built-in limit tables) to 300 GHz.")]
+    frequency_mhz: Annotated[
+        float,
+        Field(
+            ge=0.1,
+            le=300_000,
+            description="Carrier frequency [MHz], 0.1 MHz (the lowest edge of the built-in limit tables) to 300 GHz.",
+        ),
+    ]
     power_w: Power | None = Field(
         None, description="Transmitter output per port [W], 1 µW (-30 dBm) to 10 MW (100 dBm), as power_dbm."
     )
@@ -215,16 +222,16 @@ class _Directional(EmitterBase):
         return BEAMWIDTH_DIRECTIVITY_DEG2 / (self.h_beamwidth_deg * self.v_beamwidth_deg)
 
     def _antenna_fields(self) -> dict:
-        return dict(
-            azimuth_deg=self.azimuth_deg,
-            mech_tilt_deg=self.mech_tilt_deg,
-            elec_tilt_deg=self.elec_tilt_deg,
-            h_beamwidth_deg=self.h_beamwidth_deg,
-            v_beamwidth_deg=self.v_beamwidth_deg,
-            front_to_back_db=self.front_to_back_db,
-            sidelobe_floor_db=self.sidelobe_floor_db,
-            length_m=self.length_m,
-        )
+        return {
+            "azimuth_deg": self.azimuth_deg,
+            "mech_tilt_deg": self.mech_tilt_deg,
+            "elec_tilt_deg": self.elec_tilt_deg,
+            "h_beamwidth_deg": self.h_beamwidth_deg,
+            "v_beamwidth_deg": self.v_beamwidth_deg,
+            "front_to_back_db": self.front_to_back_db,
+            "sidelobe_floor_db": self.sidelobe_floor_db,
+            "length_m": self.length_m,
+        }
 
 
 class PanelEmitter(_Directional):
@@ -250,7 +257,7 @@ class ArrayEmitter(_Directional):
         return self.power_reduction_factor
 
     def _antenna_fields(self) -> dict:
-        return super()._antenna_fields() | dict(h_scan_deg=self.h_scan_deg, v_scan_deg=self.v_scan_deg)
+        return super()._antenna_fields() | {"h_scan_deg": self.h_scan_deg, "v_scan_deg": self.v_scan_deg}
 
 
 class DirectionalEmitter(_Directional):
@@ -284,14 +291,14 @@ class OmniEmitter(EmitterBase):
         return BEAMWIDTH_DIRECTIVITY_DEG2 / (360.0 * self.v_beamwidth_deg)
 
     def _antenna_fields(self) -> dict:
-        return dict(
-            mech_tilt_deg=self.mech_tilt_deg,
-            elec_tilt_deg=self.elec_tilt_deg,
-            h_beamwidth_deg=360.0,
-            v_beamwidth_deg=self.v_beamwidth_deg,
-            sidelobe_floor_db=self.sidelobe_floor_db,
-            length_m=self.length_m,
-        )
+        return {
+            "mech_tilt_deg": self.mech_tilt_deg,
+            "elec_tilt_deg": self.elec_tilt_deg,
+            "h_beamwidth_deg": 360.0,
+            "v_beamwidth_deg": self.v_beamwidth_deg,
+            "sidelobe_floor_db": self.sidelobe_floor_db,
+            "length_m": self.length_m,
+        }
 
 
 class DishEmitter(EmitterBase):
@@ -318,14 +325,14 @@ class DishEmitter(EmitterBase):
         return f"a {self.diameter_m:g} m reflector at {self.frequency_mhz:g} MHz"
 
     def _antenna_fields(self) -> dict:
-        return dict(
-            azimuth_deg=self.azimuth_deg,
-            elevation_deg=self.elevation_deg,
-            diameter_m=self.diameter_m,
-            aperture_efficiency=self.aperture_efficiency,
-        )
+        return {
+            "azimuth_deg": self.azimuth_deg,
+            "elevation_deg": self.elevation_deg,
+            "diameter_m": self.diameter_m,
+            "aperture_efficiency": self.aperture_efficiency,
+        }
 
 
 EmitterRecord = Annotated[
-    Union[PanelEmitter, OmniEmitter, DishEmitter, ArrayEmitter, DirectionalEmitter], Field(discriminator="kind")
+    PanelEmitter | OmniEmitter | DishEmitter | ArrayEmitter | DirectionalEmitter, Field(discriminator="kind")
 ]

@@ -47,8 +47,11 @@ def _at_least_a_microwatt(value: float) -> float:
     return value
 
 
-VBeamwidth = Annotated[float, Field(gt=0, le=360, description="Vertical half-power beamwidth [deg], at most 180."),
-                       AfterValidator(_vertical_beamwidth)]
+VBeamwidth = Annotated[
+    float,
+    Field(gt=0, le=360, description="Vertical half-power beamwidth [deg], at most 180."),
+    AfterValidator(_vertical_beamwidth),
+]
 
 
 Power = Annotated[float, Field(gt=0, le=1e7), AfterValidator(_at_least_a_microwatt)]
@@ -90,14 +93,10 @@ NOTES_MAX_CHARS = 2000
 """Longest ``site.notes``: a paragraph of the worksheet, which must fit one page."""
 
 
-Identifier = Annotated[
-    str, StringConstraints(pattern=r"^[a-z0-9_-]+$", min_length=1, max_length=80)
-]
+Identifier = Annotated[str, StringConstraints(pattern=r"^[a-z0-9_-]+$", min_length=1, max_length=80)]
 
 
-EmitterId = Annotated[
-    str, StringConstraints(pattern=r"^[A-Za-z0-9_.-]+$", min_length=1, max_length=40)
-]
+EmitterId = Annotated[str, StringConstraints(pattern=r"^[A-Za-z0-9_.-]+$", min_length=1, max_length=40)]
 
 
 Point2 = Annotated[list[Coordinate], Len(2, 2)]

@@ -70,18 +70,14 @@ def validate_record(data: dict, source: str) -> SiteRecord:
     if version is None:
         raise InputError(f"schema_version: required key missing (this version reads {SCHEMA_VERSION})", source)
     if type(version) is not int or version != SCHEMA_VERSION:
-        raise InputError(
-            f"schema_version: {version!r} is not supported (this version reads {SCHEMA_VERSION})", source
-        )
+        raise InputError(f"schema_version: {version!r} is not supported (this version reads {SCHEMA_VERSION})", source)
     try:
         return SiteRecord.model_validate(data)
     except ValidationError as exc:
         raise InputError(format_validation_errors(exc, data), source) from None
 
 
-def load_site(
-    path: str | Path, *, standard: str | None = None, limits_file: str | Path | None = None
-) -> Site:
+def load_site(path: str | Path, *, standard: str | None = None, limits_file: str | Path | None = None) -> Site:
     """Read, validate and resolve one site record.
 
     Parameters

@@ -9,7 +9,6 @@ from typing import Any
 
 from pydantic import BaseModel, ValidationError
 
-from exposure.site.record import Surface, WorkPosition
 from exposure.site.emitters import (
     ArrayEmitter,
     DirectionalEmitter,
@@ -17,7 +16,7 @@ from exposure.site.emitters import (
     OmniEmitter,
     PanelEmitter,
 )
-from exposure.site.record import SiteInfo, SiteRecord
+from exposure.site.record import SiteInfo, SiteRecord, Surface, WorkPosition
 from exposure.vocabulary import EMITTER_KINDS
 
 _EMITTER_MODELS: dict[str, type[BaseModel]] = {

@@ -211,7 +211,9 @@ class Site:
 
     def with_antennas(self, antennas: Iterator[Any] | tuple[Any, ...]) -> Site:
         """The site with each emitter's antenna replaced, in order (prepared models, say)."""
-        return replace(self, emitters=tuple(replace(e, antenna=a) for e, a in zip(self.emitters, antennas, strict=True)))
+        return replace(
+            self, emitters=tuple(replace(e, antenna=a) for e, a in zip(self.emitters, antennas, strict=True))
+        )
 
 
 def _named(items: tuple[Any, ...], key: str, wanted: str, what: str) -> Any:

@@ -1,5 +1,4 @@
-"""Reading a pattern file: tabulated cuts as CSV (``plane,angle_deg,attenuation_db``).
-"""
+"""Reading a pattern file: tabulated cuts as CSV (``plane,angle_deg,attenuation_db``)."""
 
 from __future__ import annotations
 
@@ -33,8 +32,11 @@ def read_pattern_csv(path: str | Path) -> PatternCuts:
     path = Path(path)
     source = str(path)
     text = read_text(path, what="pattern file")
-    rows = [(n, line) for n, line in enumerate(text.splitlines(), start=1)
-            if line.strip() and not line.lstrip().startswith("#")]
+    rows = [
+        (n, line)
+        for n, line in enumerate(text.splitlines(), start=1)
+        if line.strip() and not line.lstrip().startswith("#")
+    ]
     if not rows:
         raise InputError("empty pattern file; expected the header plane,angle_deg,attenuation_db", source=source)
     n0, header = rows[0]
@@ -46,7 +48,7 @@ def read_pattern_csv(path: str | Path) -> PatternCuts:
         )
     problems: list[str] = []
     data: dict[str, tuple[list[float], list[float]]] = {"h": ([], []), "v": ([], [])}
-    for n, fields in zip((n for n, _ in rows[1:]), csv.reader(line for _, line in rows[1:])):
+    for n, fields in zip((n for n, _ in rows[1:]), csv.reader(line for _, line in rows[1:]), strict=False):
         if len(fields) != 3:
             problems.append(f"line {n}: expected 3 fields (plane,angle_deg,attenuation_db), got {len(fields)}")
             continue

@@ -61,8 +61,15 @@ class SiteInfo(Strict):
     )
     body_height_m: Annotated[float, Field(gt=0, le=3.0)] = 2.0
     evaluation: Evaluation = "peak"
-    grid_m: Annotated[float, Field(ge=0.05, le=10.0, description="Map spacing [m], 0.05 to 10; with the "
-                                   "surfaces and emitters within the grid budget (see README).")] = 0.25
+    grid_m: Annotated[
+        float,
+        Field(
+            ge=0.05,
+            le=10.0,
+            description="Map spacing [m], 0.05 to 10; with the "
+            "surfaces and emitters within the grid budget (see README).",
+        ),
+    ] = 0.25
     notes: Annotated[str, StringConstraints(max_length=NOTES_MAX_CHARS), AfterValidator(_text_with_lines)] = Field(
         "", description=f"Free text for the worksheet, at most {NOTES_MAX_CHARS} characters."
     )
@@ -182,15 +189,18 @@ class SiteRecord(Strict):
             if surface is None:
                 problems.append(f"access_points[{i}].surface {point.surface!r} is not a surface of this site")
             elif distance_xy(surface.polygon, point.x_m, point.y_m) > 0.5:
-                problems.append(f"access_points[{i}] ({point.name!r}) is more than 0.5 m from surface {point.surface!r}")
+                problems.append(
+                    f"access_points[{i}] ({point.name!r}) is more than 0.5 m from surface {point.surface!r}"
+                )
         if problems:
             raise ValueError("; ".join(problems))
         return self
 
     @model_validator(mode="after")
     def _within_grid_budget(self):
-        problem = grid_budget_problem([(s.name, s.outline) for s in self.surfaces], len(self.emitters),
-                                      self.site.body_height_m, self.site.grid_m)
+        problem = grid_budget_problem(
+            [(s.name, s.outline) for s in self.surfaces], len(self.emitters), self.site.body_height_m, self.site.grid_m
+        )
         if problem:
             raise ValueError(problem)
         return self

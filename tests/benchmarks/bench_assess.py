@@ -35,13 +35,27 @@ def roof_record(n_emitters: int, grid_m: float) -> dict:
     for k in range(n_emitters):
         x, y = masts[(k // 3) % len(masts)]
         frequency, gain, v_bw, length = BANDS[k % 3]
-        emitters.append({
-            "id": f"E{k + 1:02d}", "operator": f"Operator {'ABC'[k % 3]} (invented)", "kind": "panel",
-            "frequency_mhz": frequency, "power_w": 40.0, "ports": 2, "line_loss_db": 0.5, "gain_dbi": gain,
-            "x_m": x + 0.3 * (k % 3), "y_m": y, "z_m": 3.5, "azimuth_deg": ((k % 3) * 120.0 + 15 * (k // 3)) % 360,
-            "elec_tilt_deg": 4.0, "h_beamwidth_deg": 65.0, "v_beamwidth_deg": v_bw, "front_to_back_db": 25.0,
-            "length_m": length,
-        })
+        emitters.append(
+            {
+                "id": f"E{k + 1:02d}",
+                "operator": f"Operator {'ABC'[k % 3]} (invented)",
+                "kind": "panel",
+                "frequency_mhz": frequency,
+                "power_w": 40.0,
+                "ports": 2,
+                "line_loss_db": 0.5,
+                "gain_dbi": gain,
+                "x_m": x + 0.3 * (k % 3),
+                "y_m": y,
+                "z_m": 3.5,
+                "azimuth_deg": ((k % 3) * 120.0 + 15 * (k // 3)) % 360,
+                "elec_tilt_deg": 4.0,
+                "h_beamwidth_deg": 65.0,
+                "v_beamwidth_deg": v_bw,
+                "front_to_back_db": 25.0,
+                "length_m": length,
+            }
+        )
     return {
         "schema_version": 1,
         "site": {"id": "bench-roof", "name": "Benchmark roof (invented)", "grid_m": grid_m, "body_height_m": 2.0},
@@ -104,13 +118,17 @@ def main() -> None:
         rss = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024
 
     print(f"machine: {platform.processor() or platform.machine()}, {os.cpu_count()} cores, numpy {np.__version__}")
-    print(f"roof 60 m x 40 m, grid {args.grid_m} m, {args.emitters} panels, {n_points:,} points, {pairs:,} point-emitter pairs")
+    print(
+        f"roof 60 m x 40 m, grid {args.grid_m} m, {args.emitters} panels, {n_points:,} points, {pairs:,} point-emitter pairs"
+    )
     print(f"assess wall time       {wall:8.2f} s   ({pairs / wall / 1e6:.2f} M pairs/s)")
     print(f"floor kernel           {floor:8.2f} s   ({pairs / floor / 1e6:.2f} M pairs/s)")
     print(f"ratio to floor         {wall / floor:8.2f} x   (target <= 3; best of 3 each)")
     print(f"peak traced memory     {peak / 2**20:8.1f} MiB (numpy and Python allocations; target < 1024)")
     print(f"peak resident memory   {rss:8.1f} MiB (whole process, interpreter and libraries included)")
-    print(f"verdict {result.verdict}; roof max {100 * result.surfaces[0].max_ratio['occupational']:.0f} % of occupational")
+    print(
+        f"verdict {result.verdict}; roof max {100 * result.surfaces[0].max_ratio['occupational']:.0f} % of occupational"
+    )
 
 
 if __name__ == "__main__":

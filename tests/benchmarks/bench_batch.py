@@ -107,9 +107,11 @@ def main() -> None:
     parser.add_argument("--no-dask", action="store_true")
     args = parser.parse_args()
 
-    print(f"{args.sites} invented sites, --grid-m {args.grid_m:g}, "
-          f"{'with' if args.report else 'without'} reports (--no-report), "
-          f"{os.cpu_count()} CPUs, Python {sys.version.split()[0]}")
+    print(
+        f"{args.sites} invented sites, --grid-m {args.grid_m:g}, "
+        f"{'with' if args.report else 'without'} reports (--no-report), "
+        f"{os.cpu_count()} CPUs, Python {sys.version.split()[0]}"
+    )
     runs = []
     with tempfile.TemporaryDirectory(prefix="bench-batch-") as tmp:
         tmp = Path(tmp)
@@ -130,13 +132,18 @@ def main() -> None:
             else:
                 # Dask's nanny sets MALLOC_TRIM_THRESHOLD_=65536 in its workers by default;
                 # measured with and without it (the numpy-heavy sites allocate large arrays).
-                untrimmed = {"distributed.nanny.pre-spawn-environ": {
-                    name: 1 for name in ("OMP_NUM_THREADS", "MKL_NUM_THREADS", "OPENBLAS_NUM_THREADS")}}
+                untrimmed = {
+                    "distributed.nanny.pre-spawn-environ": dict.fromkeys(
+                        ("OMP_NUM_THREADS", "MKL_NUM_THREADS", "OPENBLAS_NUM_THREADS"), 1
+                    )
+                }
                 runs.append(dask_run("dask, 2 workers", files, options("dask"), {}))
                 runs.append(dask_run("dask, no malloc trim", files, options("dask-nt"), untrimmed))
 
-    print(f"ceiling: two processes run pure-Python arithmetic {machine_ceiling():.2f}x as fast as one here "
-          "(2.00x on two idle cores)")
+    print(
+        f"ceiling: two processes run pure-Python arithmetic {machine_ceiling():.2f}x as fast as one here "
+        "(2.00x on two idle cores)"
+    )
     base = runs[0][1]
     print(f"{'runner':<24}{'seconds':>9}{'sites/s':>9}{'speed-up':>10}")
     for label, seconds in runs:

@@ -24,14 +24,31 @@ from exposure.antenna import Antenna, PatternCuts
 from exposure.models import CHUNK_POINTS, power_density
 
 PANEL = Antenna(
-    id="P1", kind="panel", frequency_mhz=1960.0, net_power_w=71.3, gain_dbi=17.5, position_m=(0.0, 0.0, 10.0),
-    azimuth_deg=30.0, mech_tilt_deg=2.0, elec_tilt_deg=4.0, h_beamwidth_deg=65.0, v_beamwidth_deg=6.8,
-    front_to_back_db=25.0, length_m=1.9,
+    id="P1",
+    kind="panel",
+    frequency_mhz=1960.0,
+    net_power_w=71.3,
+    gain_dbi=17.5,
+    position_m=(0.0, 0.0, 10.0),
+    azimuth_deg=30.0,
+    mech_tilt_deg=2.0,
+    elec_tilt_deg=4.0,
+    h_beamwidth_deg=65.0,
+    v_beamwidth_deg=6.8,
+    front_to_back_db=25.0,
+    length_m=1.9,
 )
 DISH = Antenna(
-    id="D1", kind="dish", frequency_mhz=6000.0, net_power_w=100.0, gain_dbi=42.9, position_m=(0.0, 0.0, 10.0),
-    azimuth_deg=30.0, diameter_m=3.0,
+    id="D1",
+    kind="dish",
+    frequency_mhz=6000.0,
+    net_power_w=100.0,
+    gain_dbi=42.9,
+    position_m=(0.0, 0.0, 10.0),
+    azimuth_deg=30.0,
+    diameter_m=3.0,
 )
+
 
 def _cuts() -> PatternCuts:
     """Invented cuts, 3GPP-like: 65 deg horizontal, 6.8 deg vertical, full circle."""
@@ -100,14 +117,14 @@ def timed_against_floor(fn, floor, repeat: int) -> tuple[float, float, int]:
 def run(n: int, repeat: int) -> None:
     for cloud, (low, high) in CLOUDS.items():
         points = make_points(n, cloud)
-        floor = lambda: floor_kernel(points)  # noqa: E731
+        floor = lambda points=points: floor_kernel(points)
         print(f"{cloud}: {n:,} points in {low} .. {high} m, chunks of {CHUNK_POINTS:,}; best of {repeat}")
         print(f"  {'case':45s} {'points/s':>12s} {'x floor':>8s} {'peak MB':>8s}")
         _, floor_s, floor_peak = timed_against_floor(floor, floor, repeat)
         print(f"  {'floor kernel':45s} {n / floor_s:12.3e} {1.0:8.2f} {floor_peak / 1e6:8.1f}")
         for name, antenna, model in CASES:
             seconds, floor_s, peak = timed_against_floor(
-                lambda: power_density(antenna, points, model=model, reflection="typical"), floor, repeat
+                lambda a=antenna, p=points, m=model: power_density(a, p, model=m, reflection="typical"), floor, repeat
             )
             print(f"  {name:45s} {n / seconds:12.3e} {seconds / floor_s:8.2f} {peak / 1e6:8.1f}")
     print("(x floor: against the floor kernel timed alternately; peak MB includes the 8 MB output)")

@@ -70,7 +70,11 @@ class WireAntenna:
     def key(self) -> str:
         """A hash of the geometry and excitation: the solver cache's key."""
         text = json.dumps(
-            {"f": self.frequency_mhz, "wires": [asdict(w) for w in self.wires], "feeds": [asdict(f) for f in self.feeds]},
+            {
+                "f": self.frequency_mhz,
+                "wires": [asdict(w) for w in self.wires],
+                "feeds": [asdict(f) for f in self.feeds],
+            },
             sort_keys=True,
         )
         return hashlib.sha256(text.encode()).hexdigest()[:16]
@@ -97,8 +101,14 @@ def dipole(frequency_mhz: float = 900.0) -> WireAntenna:
     lam = wavelength(frequency_mhz)
     wires = (_dipole_wire(0.0, 0.0, 0.0, lam),)
     return WireAntenna(
-        f"dipole-{frequency_mhz:g}", "omni", frequency_mhz, 0.48 * lam, wires,
-        (Feed(0, (1.0, 0.0)),), "half-wave dipole", _extent(wires),
+        f"dipole-{frequency_mhz:g}",
+        "omni",
+        frequency_mhz,
+        0.48 * lam,
+        wires,
+        (Feed(0, (1.0, 0.0)),),
+        "half-wave dipole",
+        _extent(wires),
     )
 
 
@@ -109,8 +119,14 @@ def collinear(frequency_mhz: float = 900.0, count: int = 6, spacing_lam: float =
     wires = tuple(_dipole_wire(0.0, 0.0, z, lam) for z in zs)
     feeds = tuple(Feed(i, (1.0, 0.0)) for i in range(count))
     return WireAntenna(
-        f"collinear{count}-{frequency_mhz:g}", "omni", frequency_mhz, count * d, wires, feeds,
-        f"{count} half-wave dipoles stacked {spacing_lam:g} λ apart, fed in phase", _extent(wires),
+        f"collinear{count}-{frequency_mhz:g}",
+        "omni",
+        frequency_mhz,
+        count * d,
+        wires,
+        feeds,
+        f"{count} half-wave dipoles stacked {spacing_lam:g} λ apart, fed in phase",
+        _extent(wires),
     )
 
 
@@ -157,7 +173,9 @@ def panel(
     if taper:
         parts.append("taper " + "/".join(f"{a:g}" for a in taper))
     name = f"panel{count}{label}-{frequency_mhz:g}"
-    return WireAntenna(name, "panel", frequency_mhz, count * d, tuple(wires), tuple(feeds), "; ".join(parts), _extent(wires))
+    return WireAntenna(
+        name, "panel", frequency_mhz, count * d, tuple(wires), tuple(feeds), "; ".join(parts), _extent(wires)
+    )
 
 
 YAGI_LAYOUTS = {
@@ -173,13 +191,23 @@ def yagi(frequency_mhz: float = 900.0, elements: int = 6) -> WireAntenna:
     layout = YAGI_LAYOUTS[elements]
     boom = layout[-1][0] * lam
     wires = tuple(
-        Wire(((x * lam) - 0.5 * boom, 0.0, -0.5 * length * lam), ((x * lam) - 0.5 * boom, 0.0, 0.5 * length * lam),
-             _segments(length * lam, lam, 24), lam / 200.0)
+        Wire(
+            ((x * lam) - 0.5 * boom, 0.0, -0.5 * length * lam),
+            ((x * lam) - 0.5 * boom, 0.0, 0.5 * length * lam),
+            _segments(length * lam, lam, 24),
+            lam / 200.0,
+        )
         for x, length in layout
     )
     return WireAntenna(
-        f"yagi{elements}-{frequency_mhz:g}", "directional", frequency_mhz, boom, wires, (Feed(1, (1.0, 0.0)),),
-        f"{elements}-element Yagi–Uda, {layout[-1][0]:g} λ boom", _extent(wires),
+        f"yagi{elements}-{frequency_mhz:g}",
+        "directional",
+        frequency_mhz,
+        boom,
+        wires,
+        (Feed(1, (1.0, 0.0)),),
+        f"{elements}-element Yagi–Uda, {layout[-1][0]:g} λ boom",
+        _extent(wires),
     )
 
 

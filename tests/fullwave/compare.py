@@ -35,7 +35,9 @@ def antenna_for(solution: Solution, record: dict | None = None, tabulated: bool 
         {
             "schema_version": 1,
             "site": {"id": "full-wave", "name": "Full-wave comparison"},
-            "surfaces": [{"name": "Ground", "access": "none", "outline": [[-100, -100], [100, -100], [100, 100], [-100, 100]]}],
+            "surfaces": [
+                {"name": "Ground", "access": "none", "outline": [[-100, -100], [100, -100], [100, 100], [-100, 100]]}
+            ],
             "emitters": [emitter],
         }
     )
@@ -71,7 +73,9 @@ def beam_mask(antenna: WireAntenna, record: dict, points: np.ndarray) -> np.ndar
     return in_front & (np.abs(z - axis_z) <= half_height) & (r_h > 0)
 
 
-def compare(antenna: WireAntenna, model: str = "auto", record: dict | None = None, tabulated: bool = False) -> Comparison:
+def compare(
+    antenna: WireAntenna, model: str = "auto", record: dict | None = None, tabulated: bool = False
+) -> Comparison:
     solution = solve(antenna)
     record = record or ds.record_for(solution)
     tool = antenna_for(solution, record, tabulated)
@@ -81,7 +85,9 @@ def compare(antenna: WireAntenna, model: str = "auto", record: dict | None = Non
     r = np.linalg.norm(points, axis=1)
     far = (r >= far_field_distance(antenna)) & ~element
     near = ~far & ~element
-    return Comparison(solution, tool, predicted, solution.reference_w_m2, element, near, far, beam_mask(antenna, record, points))
+    return Comparison(
+        solution, tool, predicted, solution.reference_w_m2, element, near, far, beam_mask(antenna, record, points)
+    )
 
 
 def beam_points(antenna: WireAntenna, record: dict, count: int = 400) -> tuple[np.ndarray, np.ndarray]:

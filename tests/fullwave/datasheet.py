@@ -50,6 +50,7 @@ def _half_power_width(angles: np.ndarray, gain_db: np.ndarray, periodic: bool) -
     while (hi + 1 < n or periodic) and inside[(hi + 1) % n] and width < 360.0:
         hi += 1
         width += step
+
     # refine the edges by linear interpolation in dB
     def edge(inner: int, outer: int) -> float:
         a, b = gain_db[inner % n], gain_db[outer % n]

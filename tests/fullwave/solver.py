@@ -62,7 +62,7 @@ def _context(antenna: WireAntenna):
         geometry.wire(tag, w.segments, *w.a, *w.b, w.radius_m, 1.0, 1.0)
     context.geometry_complete(0)
     context.gn_card(-1, 0, 0, 0, 0, 0, 0, 0)  # free space
-    for n, feed in enumerate(antenna.feeds):
+    for feed in antenna.feeds:
         w = antenna.wires[feed.wire]
         # I1 = 0 (applied field voltage source), I4 = 0; the first source resets the list
         context.ex_card(0, feed.wire + 1, w.segments // 2 + 1, 0, feed.voltage[0], feed.voltage[1], 0, 0, 0, 0)
@@ -81,7 +81,11 @@ def _input_power(context, antenna: WireAntenna) -> float:
 def _cut(context, index: int, n_theta: int, n_phi: int, theta0: float, phi0: float, dtheta: float, dphi: float):
     context.rp_card(0, n_theta, n_phi, 0, 0, 0, 0, theta0, phi0, dtheta, dphi, 0, 0)
     pattern = context.get_radiation_pattern(index)
-    return np.asarray(pattern.get_gain(), dtype=float).reshape(n_theta, n_phi) if n_phi > 1 else np.asarray(pattern.get_gain(), dtype=float)
+    return (
+        np.asarray(pattern.get_gain(), dtype=float).reshape(n_theta, n_phi)
+        if n_phi > 1
+        else np.asarray(pattern.get_gain(), dtype=float)
+    )
 
 
 def _fields(context, points: np.ndarray, first_index: int) -> tuple[np.ndarray, np.ndarray]:
@@ -139,8 +143,15 @@ def solve(antenna: WireAntenna, points: np.ndarray | None = None) -> Solution:
     if path.exists():
         data = np.load(path)
         return Solution(
-            antenna, float(data["input_power_w"]), data["h_cut_deg"], data["h_cut_dbi"], data["v_cut_deg"],
-            data["v_cut_dbi"], data["points_m"], data["s_e"], data["s_h"],
+            antenna,
+            float(data["input_power_w"]),
+            data["h_cut_deg"],
+            data["h_cut_dbi"],
+            data["v_cut_deg"],
+            data["v_cut_dbi"],
+            data["points_m"],
+            data["s_e"],
+            data["s_h"],
         )
     solution = _solve_uncached(antenna, pts)
     CACHE.mkdir(exist_ok=True)
@@ -148,9 +159,15 @@ def solve(antenna: WireAntenna, points: np.ndarray | None = None) -> Solution:
         stale.unlink()
     tmp = path.with_suffix(".part.npz")
     np.savez_compressed(
-        tmp, input_power_w=solution.input_power_w, h_cut_deg=solution.h_cut_deg, h_cut_dbi=solution.h_cut_dbi,
-        v_cut_deg=solution.v_cut_deg, v_cut_dbi=solution.v_cut_dbi, points_m=solution.points_m,
-        s_e=solution.s_e, s_h=solution.s_h,
+        tmp,
+        input_power_w=solution.input_power_w,
+        h_cut_deg=solution.h_cut_deg,
+        h_cut_dbi=solution.h_cut_dbi,
+        v_cut_deg=solution.v_cut_deg,
+        v_cut_dbi=solution.v_cut_dbi,
+        points_m=solution.points_m,
+        s_e=solution.s_e,
+        s_h=solution.s_h,
     )
     tmp.replace(path)
     return solution

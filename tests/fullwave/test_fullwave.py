@@ -22,9 +22,9 @@ import pytest
 
 pytest.importorskip("PyNEC")
 
-from tests.fullwave import compare  # noqa: E402
-from tests.fullwave.antennas import reference_antennas, wavelength  # noqa: E402
-from tests.fullwave.solver import far_field_distance, solve, solve_points  # noqa: E402
+from tests.fullwave import compare
+from tests.fullwave.antennas import reference_antennas, wavelength
+from tests.fullwave.solver import far_field_distance, solve, solve_points
 
 ANTENNAS = reference_antennas()
 IDS = [a.name for a in ANTENNAS]
@@ -93,8 +93,11 @@ def test_tight_on_the_main_beam(antenna):
     assert np.all(np.abs(far) <= 1.0), f"{far.min():.2f}..{far.max():.2f} dB"
 
 
-@pytest.mark.parametrize("antenna", [a for a in ANTENNAS if a.kind in ("panel", "omni") and a.length_m > wavelength(a.frequency_mhz)],
-                         ids=[a.name for a in ANTENNAS if a.kind in ("panel", "omni") and a.length_m > wavelength(a.frequency_mhz)])
+@pytest.mark.parametrize(
+    "antenna",
+    [a for a in ANTENNAS if a.kind in ("panel", "omni") and a.length_m > wavelength(a.frequency_mhz)],
+    ids=[a.name for a in ANTENNAS if a.kind in ("panel", "omni") and a.length_m > wavelength(a.frequency_mhz)],
+)
 def test_main_beam_compliance_distance(antenna):
     """Acceptance: the tool's main-beam distance (auto, as `screen` and the assessment use it)
     is 1.0 to 1.6 times the full-wave distance, for boundaries from 0.5 m to 15 m."""
@@ -136,11 +139,29 @@ def test_screen_command_distance_against_the_full_wave_distance():
     level = float(np.interp(math.log(3.0), np.log(distances), reference))
     truth = compare.last_crossing(distances, reference, level)
     scale = 6.0 / level  # power that puts the 6 W/m2 limit where the full-wave field has `level`
-    result = CliRunner().invoke(app, [
-        "screen", "--frequency-mhz", "900", "--power-w", repr(power * scale), "--gain-dbi", str(record["gain_dbi"]),
-        "--kind", "panel", "--h-beamwidth-deg", str(record["h_beamwidth_deg"]), "--v-beamwidth-deg",
-        str(record["v_beamwidth_deg"]), "--length-m", str(record["length_m"]), "--reflection", "none", "--json",
-    ])
+    result = CliRunner().invoke(
+        app,
+        [
+            "screen",
+            "--frequency-mhz",
+            "900",
+            "--power-w",
+            repr(power * scale),
+            "--gain-dbi",
+            str(record["gain_dbi"]),
+            "--kind",
+            "panel",
+            "--h-beamwidth-deg",
+            str(record["h_beamwidth_deg"]),
+            "--v-beamwidth-deg",
+            str(record["v_beamwidth_deg"]),
+            "--length-m",
+            str(record["length_m"]),
+            "--reflection",
+            "none",
+            "--json",
+        ],
+    )
     assert result.exit_code == 0, result.output
     screened = json.loads(result.stdout)["boundary_m"]["general_public"]
     assert 1.0 <= screened / truth <= 1.6, f"{screened:.2f} m against {truth:.2f} m"

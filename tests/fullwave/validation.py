@@ -32,16 +32,33 @@ def rows() -> list[list[str]]:
         if antenna.kind in ("panel", "omni") and antenna.length_m > wavelength(antenna.frequency_mhz):
             multiples = [m for _, m in compare.distance_ratios(antenna)]
             distance = f"{min(multiples):.2f}–{max(multiples):.2f}"
-        out.append([
-            antenna.name, antenna.kind, f"{np.count_nonzero(~c.element)}",
-            _stats(ratio[c.element]), _stats(ratio[c.near]), _stats(ratio[c.near & c.beam]), _stats(ratio[c.far]),
-            _stats(ratio[c.far & c.beam]), distance,
-        ])
+        out.append(
+            [
+                antenna.name,
+                antenna.kind,
+                f"{np.count_nonzero(~c.element)}",
+                _stats(ratio[c.element]),
+                _stats(ratio[c.near]),
+                _stats(ratio[c.near & c.beam]),
+                _stats(ratio[c.far]),
+                _stats(ratio[c.far & c.beam]),
+                distance,
+            ]
+        )
     return out
 
 
-HEADER = ["antenna", "record kind", "points outside the element zone", "element zone", "radiating near field",
-          "near field, main beam", "far field", "far field, main beam", "main-beam distance / full-wave"]
+HEADER = [
+    "antenna",
+    "record kind",
+    "points outside the element zone",
+    "element zone",
+    "radiating near field",
+    "near field, main beam",
+    "far field",
+    "far field, main beam",
+    "main-beam distance / full-wave",
+]
 
 
 def main() -> None:

@@ -1,0 +1,274 @@
+"""What the map and the sections share: the colour scale, the contour and surface styles, the
+scale bar and north arrow, and figures drawn on matplotlib's Agg canvas as PNG bytes.
+
+matplotlib is used through its object API on the Agg canvas (no pyplot, no global
+backend switch), and imported only inside the functions, so that importing
+``exposure.report`` stays cheap. Each function returns PNG bytes and the figure's size in
+inches; the PNG carries no timestamp or version, so equal input gives equal bytes.
+
+Colours: exposure is shown as % of the general-public limit on ``viridis`` (perceptually
+uniform, readable in greyscale and by most colour-vision deficiencies) on a log scale from
+1 % to 10 000 % (reaching down to 0.001 % on sites whose highest value is below 10 %, see
+:func:`colour_range`). The two 100 % contours are drawn in black (general public) and in a
+dark red with a white casing (occupational), so they read on every part of the scale.
+"""
+
+from __future__ import annotations
+
+import io
+import math
+
+import numpy as np
+
+DPI = 200
+
+
+PERCENT_RANGE = (1.0, 1.0e4)  # usual colour scale of the maps [% of the general-public limit]
+
+
+LOWEST_PERCENT = 1e-3  # the scale reaches down to here on sites with little exposure
+
+
+CMAP = "viridis"
+
+
+GP_LINE = {"colors": "black", "linewidths": 1.3, "linestyles": "solid"}
+
+
+OCC_COLOUR = "#b0102a"
+
+
+OCC_LINE = {"colors": OCC_COLOUR, "linewidths": 1.6, "linestyles": "solid"}
+
+
+TEN_OCC_LINE = {
+    "colors": OCC_COLOUR,
+    "linewidths": 1.6,
+    "linestyles": [(0, (4, 1.5, 1, 1.5))],
+}  # ten times occupational
+
+
+CATEGORY_LINES = (  # (key, tier, level, style, white casing): the boundaries of categories 2, 3 and 4
+    ("general_public", "general_public", 1.0, GP_LINE, False),
+    ("occupational", "occupational", 1.0, OCC_LINE, True),
+    ("ten_occupational", "occupational", 10.0, TEN_OCC_LINE, True),
+)
+
+
+HEAD_LINE = "#ff9e4a"  # the top of the evaluated body height in the sections
+
+
+CASING = {"colors": "white", "linewidths": 3.0, "linestyles": "solid"}
+
+
+ACCESS_STYLE = {  # outline and shading of surfaces by access class
+    "public": {
+        "edgecolor": "black",
+        "linewidth": 1.8,
+        "linestyle": "solid",
+        "hatch": "\\\\",
+        "hatch_colour": (1, 1, 1, 0.55),
+        "fill": None,
+    },
+    "occupational": {
+        "edgecolor": "#202020",
+        "linewidth": 1.0,
+        "linestyle": (0, (5, 2)),
+        "hatch": None,
+        "hatch_colour": None,
+        "fill": None,
+    },
+    "none": {
+        "edgecolor": "#505050",
+        "linewidth": 0.8,
+        "linestyle": (0, (1, 1.5)),
+        "hatch": "xx",
+        "hatch_colour": (0.3, 0.3, 0.3, 0.7),
+        "fill": "#bdbdbd",
+    },
+}
+
+
+ACCESS_LABEL = {"public": "public access", "occupational": "occupational (controlled) access", "none": "no access"}
+
+
+def new_figure(width_in: float, height_in: float):
+    from matplotlib.backends.backend_agg import FigureCanvasAgg
+    from matplotlib.figure import Figure
+
+    fig = Figure(figsize=(width_in, height_in), dpi=DPI)
+    FigureCanvasAgg(fig)
+    return fig
+
+
+def png(fig) -> tuple[bytes, float, float]:
+    """PNG bytes cropped to the drawing, and its width and height [in]."""
+    buffer = io.BytesIO()
+    fig.savefig(buffer, format="png", dpi=DPI, metadata={"Software": None}, bbox_inches="tight", pad_inches=0.03)
+    data = buffer.getvalue()
+    width, height = int.from_bytes(data[16:20], "big"), int.from_bytes(data[20:24], "big")  # PNG IHDR
+    return data, width / DPI, height / DPI
+
+
+def colour_range(assessment) -> tuple[float, float]:
+    """The colour scale [% of the general-public limit]: 1 %–10 000 %, reaching lower where
+    the site's highest value is below 10 % so that the map still shows where exposure is."""
+    peak = max((100.0 * s.max_ratio.get("general_public", 0.0) for s in assessment.surfaces), default=0.0)
+    low = PERCENT_RANGE[0]
+    if 0 < peak < 10.0:
+        low = max(LOWEST_PERCENT, 10.0 ** (math.floor(math.log10(peak)) - 2))
+    return low, PERCENT_RANGE[1]
+
+
+def norm(pct_range):
+    from matplotlib.colors import LogNorm
+
+    return LogNorm(vmin=pct_range[0], vmax=pct_range[1], clip=True)
+
+
+def percent(ratio: np.ndarray, pct_range) -> np.ma.MaskedArray:
+    """Ratios as % of the limit, clipped into the colour range, NaN masked."""
+    pct = np.clip(100.0 * np.asarray(ratio, dtype=float), *pct_range)
+    return np.ma.masked_invalid(pct)
+
+
+def edges(centres: np.ndarray, single_cell: float) -> np.ndarray:
+    """Cell edges from cell centres; a lone cell is *single_cell* wide."""
+    c = np.asarray(centres, dtype=float)
+    if c.size == 1:
+        return np.array([c[0] - single_cell / 2, c[0] + single_cell / 2])
+    middle = (c[1:] + c[:-1]) / 2
+    return np.concatenate([[c[0] - (c[1] - c[0]) / 2], middle, [c[-1] + (c[-1] - c[-2]) / 2]])
+
+
+def crosses(values: np.ndarray, level: float) -> bool:
+    """True where a contour at *level* has something to draw (avoids matplotlib's warning)."""
+    finite = values[np.isfinite(values)]
+    return finite.size > 0 and finite.min() < level < finite.max()
+
+
+def contour(ax, x, y, values, level: float, style: dict, zorder: float, casing: bool = False) -> bool:
+    """Draw the contour at *level*; False where there is none to draw."""
+    values = np.asarray(values, dtype=float)
+    if values.ndim != 2 or min(values.shape) < 2 or not crosses(values, level):
+        return False
+    masked = np.ma.masked_invalid(values)
+    if casing:
+        ax.contour(x, y, masked, levels=[level], zorder=zorder, **CASING)
+    ax.contour(x, y, masked, levels=[level], zorder=zorder + 0.1, **style)
+    return True
+
+
+def colourbar(fig, mappable, ax, orientation: str = "vertical", label: str | None = None):
+    bar = fig.colorbar(mappable, ax=ax, orientation=orientation, extend="both", fraction=0.035, pad=0.02)
+    low, high = mappable.norm.vmin, mappable.norm.vmax
+    ticks = [10.0**k for k in range(round(math.log10(low)), round(math.log10(high)) + 1)]
+    bar.set_ticks(ticks)
+    bar.set_ticklabels([f"{t:,.0f} %" if t >= 1 else f"{t:g} %" for t in ticks])
+    bar.ax.minorticks_off()
+    bar.set_label(label or "total exposure, % of the general-public limit (log scale)", fontsize=7)
+    bar.ax.tick_params(labelsize=7)
+    (bar.ax.axhline if orientation == "vertical" else bar.ax.axvline)(100, color="black", linewidth=1.3)
+    return bar
+
+
+def nice_length(span: float) -> float:
+    """A round scale-bar length (1, 2 or 5 × 10ⁿ m) near a fifth of *span* [m]."""
+    target = max(span / 5.0, 1e-3)
+    exponent = math.floor(math.log10(target))
+    for step in (5, 2, 1):
+        if step * 10**exponent <= target:
+            return step * 10**exponent
+    return 10**exponent
+
+
+def scale_bar(ax, x0: float, y0: float, length: float, bar_h: float) -> None:
+    from matplotlib.patches import Rectangle
+
+    for i in range(4):
+        ax.add_patch(
+            Rectangle(
+                (x0 + i * length / 4, y0),
+                length / 4,
+                bar_h,
+                facecolor="black" if i % 2 == 0 else "white",
+                edgecolor="black",
+                linewidth=0.6,
+                zorder=51,
+            )
+        )
+    for at, label in ((0, "0"), (length / 2, f"{length / 2:g}"), (length, f"{length:g} m")):
+        ax.text(x0 + at, y0 + bar_h * 1.5, label, ha="center", va="bottom", fontsize=6.5, zorder=52)
+
+
+def north_arrow(ax, x: float, y0: float, y1: float) -> None:
+    ax.annotate(
+        "",
+        xy=(x, y1),
+        xytext=(x, y0),
+        zorder=60,
+        arrowprops={
+            "arrowstyle": "-|>,head_width=0.35,head_length=0.8",
+            "color": "black",
+            "linewidth": 1.4,
+            "shrinkA": 0,
+            "shrinkB": 0,
+        },
+    )
+    ax.text(x, y0, "N", ha="center", va="top", fontsize=8.5, fontweight="bold", zorder=60)
+
+
+ELEMENT_ZONE_HATCH = "////"
+
+
+ELEMENT_ZONE_COLOUR = "#303030"
+
+
+def hatch_cells(ax, grid, zorder: float) -> None:
+    """Hatch the grid cells that reach an emitter's element zone (one outline per region)."""
+    import contourpy
+    from matplotlib.patches import Polygon
+
+    mask = grid.element_zone.astype(float)
+    if mask.shape[0] < 2 or mask.shape[1] < 2:
+        ax.plot(grid.x_m.mean(), grid.y_m.mean(), marker="x", color=ELEMENT_ZONE_COLOUR, zorder=zorder)
+        return
+    # pad by one cell so that zones on the edge of the grid close
+    dx = grid.x_m[1] - grid.x_m[0]
+    dy = grid.y_m[1] - grid.y_m[0]
+    x = np.concatenate([[grid.x_m[0] - dx], grid.x_m, [grid.x_m[-1] + dx]])
+    y = np.concatenate([[grid.y_m[0] - dy], grid.y_m, [grid.y_m[-1] + dy]])
+    padded = np.pad(mask, 1)
+    filled = contourpy.contour_generator(x, y, padded, fill_type="OuterOffset").filled(0.5, 2.0)
+    for points, offsets in zip(*filled, strict=True):
+        for a, b in zip(offsets[:-1], offsets[1:], strict=True):
+            ax.add_patch(
+                Polygon(
+                    points[a:b],
+                    closed=True,
+                    fill=False,
+                    hatch=ELEMENT_ZONE_HATCH,
+                    edgecolor=ELEMENT_ZONE_COLOUR,
+                    linewidth=0.6,
+                    zorder=zorder,
+                )
+            )
+
+
+def surface_path(surface):
+    """The surface's outline and holes as one matplotlib path (holes wound the other way)."""
+    import shapely
+    from matplotlib.path import Path
+
+    polygon = shapely.orient_polygons(shapely.Polygon(surface.outline, surface.holes))
+    rings = [np.asarray(polygon.exterior.coords)] + [np.asarray(r.coords) for r in polygon.interiors]
+    vertices = np.concatenate(rings)
+    codes = np.concatenate([[Path.MOVETO] + [Path.LINETO] * (len(r) - 2) + [Path.CLOSEPOLY] for r in rings])
+    return Path(vertices, codes)
+
+
+def surface_patch(surface, **style):
+    """A patch of the surface with its holes left open."""
+    from matplotlib.patches import PathPatch
+
+    return PathPatch(surface_path(surface), **style)

@@ -16,7 +16,7 @@ DEFAULT_STANDARD: Standard = "fcc"
 """Limit table used when neither a standard nor a limits file is given."""
 
 Tier = Literal["general_public", "occupational"]
-TIERS: tuple[Tier, ...] = get_args(Tier)
+TIERS: tuple[str, ...] = get_args(Tier)
 """Exposure tiers, in the order outputs list them."""
 
 Criterion = Literal["single", "whole-body", "local"]
@@ -46,7 +46,7 @@ ACCESS_TIER: dict[str, Tier] = {"public": "general_public", "occupational": "occ
 """The limit tier that governs a surface of each access class ('none' is not judged)."""
 
 Severity = Literal["info", "measure", "mitigate"]
-SEVERITIES: tuple[Severity, ...] = get_args(Severity)
+SEVERITIES: tuple[str, ...] = get_args(Severity)
 """Severities of findings, mildest first; the verdict is the worst."""
 Verdict = Literal["compliant", "verify-by-measurement", "mitigation-required"]
 VERDICTS: tuple[Verdict, ...] = get_args(Verdict)

@@ -20,6 +20,7 @@ from exposure.models import (
     beam_direction,
     boresight_distance_to_limit,
     frames,
+    fresnel,
     induction_margin,
     minimum_distance_m,
     model_for,
@@ -219,7 +220,7 @@ def test_aperture_far_field_uses_the_reference_pattern():
 def test_synthetic_is_the_spherical_law_beyond_the_far_field_distance():
     """Law (IEC 62232 practice): beyond 2 L^2 / lambda the synthetic model tends to the
     spherical one (within 0.5 dB), on and off boresight; inside, on the beam, it is close."""
-    r_ff = synthetic.far_field_distance_m(PANEL.length_m, PANEL.wavelength_m)
+    r_ff = fresnel.far_field_distance_m(PANEL.length_m, PANEL.wavelength_m)
     for r in (1.0 * r_ff, 1.5 * r_ff, 4 * r_ff, 0.8 * r_ff):
         dirs = frames.direction_from_angles([0, 20, -40, 90, 150, 0, 0], [0, 0, 0, 0, 0, 2.0, -2.5])
         pts = r * frames.to_site_direction(dirs, frames.antenna_axes(0.0, 0.0))
@@ -256,12 +257,12 @@ def test_auto_is_synthetic_capped_at_the_peak_gain_spherical_value():
     # adds the coherent (spatial-peak) and induction margins; with those steps, it is the same
     # minimum of synthetic and the peak-gain cap.
     auto = power_density(tilted, pts, model="auto")
-    length = synthetic.effective_length_m(tilted.length_m, tilted.wavelength_m, tilted.v_beamwidth_deg)
+    length = fresnel.effective_length_m(tilted.length_m, tilted.wavelength_m, tilted.v_beamwidth_deg)
     syn_eff = power_density(replace(tilted, length_m=length), pts, model="synthetic")
-    margin = synthetic.coherent_margin(np.sqrt(r2), length, tilted.wavelength_m)
+    margin = fresnel.coherent_margin(np.sqrt(r2), length, tilted.wavelength_m)
     local = local_coordinates(tilted, pts).T
     induction = induction_margin(tilted, local)
-    near = np.sqrt(r2) < 0.5 * synthetic.far_field_distance_m(length, tilted.wavelength_m)  # no blending there
+    near = np.sqrt(r2) < 0.5 * fresnel.far_field_distance_m(length, tilted.wavelength_m)  # no blending there
     np.testing.assert_allclose(auto[near], (np.minimum(syn_eff * margin, peak) * induction)[near], rtol=1e-5)
     assert np.all(auto >= np.minimum(syn_eff, peak) * induction * (1 - 1e-6))  # margins >= 1 elsewhere
     sph = power_density(tilted, pts, model="spherical")

@@ -15,8 +15,23 @@ from exposure.vocabulary import DIRECTIONS
 
 
 def boundary_directions(antenna: Antenna) -> dict[str, list[np.ndarray]]:
-    """Unit vectors of the box boundary: front and back along the horizontal boresight,
-    side (both sides, the larger is reported), above and below."""
+    r"""Unit vectors of the box boundary: front and back along the horizontal boresight,
+    side (both sides, the larger is reported), above and below.
+
+    Parameters
+    ----------
+    antenna : Antenna
+
+    Returns
+    -------
+    dict of str to list of ndarray
+        ``front``, ``back``, ``side`` (two), ``above``, ``below``: unit vectors in the site frame.
+
+    References
+    ----------
+    None published: this project's box boundary, after the boundary tables of OET 65 practice
+    (docs/references.md § 3).
+    """
     az = math.radians(antenna.azimuth_deg)
     front = np.array([math.sin(az), math.cos(az), 0.0])  # clockwise from +y (north)
     left = np.array([-front[1], front[0], 0.0])
@@ -27,7 +42,25 @@ def boundary_directions(antenna: Antenna) -> dict[str, list[np.ndarray]]:
 def emitter_boundaries(
     antenna: Antenna, limits_w_m2: dict[str, float], reflection: float
 ) -> dict[str, dict[str, float]]:
-    """Front, back, side, above and below boundary distances per tier [m]."""
+    r"""Front, back, side, above and below boundary distances per tier [m].
+
+    Parameters
+    ----------
+    antenna : Antenna or Prepared
+    limits_w_m2 : dict of str to float
+        The emitter's power-density limit per tier [W/m²].
+    reflection : float
+        Power reflection factor.
+
+    Returns
+    -------
+    dict of str to dict of str to float
+        tier -> direction -> distance [m] (:func:`exposure.models.reach.ray_extents`).
+
+    References
+    ----------
+    FCC OET Bulletin 65 (1997), compliance distances (from memory; docs/references.md § 3).
+    """
     directions = boundary_directions(antenna)
     limits = [limits_w_m2[tier] for tier in TIERS]
     out: dict[str, dict[str, float]] = {tier: {} for tier in TIERS}

@@ -28,8 +28,26 @@ from exposure.vocabulary import ACCESS_TIER
 LOW_FREQUENCY_MHZ = 30.0
 
 
-def distance_to_prism(point: Sequence[float], surface, z0: float, z1: float) -> float:
-    """Distance [m] from a point to the volume over a surface (holes excluded) between heights z0 and z1."""
+def distance_to_prism(point: Sequence[float] | np.ndarray, surface, z0: float, z1: float) -> float:
+    r"""Distance from a point to the volume over a surface (holes excluded) between heights z0 and z1 [m].
+
+    Parameters
+    ----------
+    point : sequence of 3 floats
+        [m].
+    surface : Surface
+    z0, z1 : float
+        Heights of the volume [m].
+
+    Returns
+    -------
+    float
+        [m], 0 inside.
+
+    References
+    ----------
+    None published: plan geometry (:mod:`exposure.geometry`).
+    """
     px, py, pz = point
     horizontal = distance_xy(surface.polygon, px, py)
     vertical = 0.0 if z0 <= pz <= z1 else min(abs(pz - z0), abs(pz - z1))
@@ -42,7 +60,7 @@ def _validity_flags(site: Site, body_height: float, limits: SiteLimits, measure_
     for antenna, emitter in zip(site.antennas, site.emitters, strict=True):
         reach = element_zone_distance_m(antenna)
         # The radiating elements span the aperture: measure from its ends (conservative).
-        half_extent = 0.5 * (antenna.diameter_m if antenna.kind == "dish" else (antenna.length_m or 0.0))
+        half_extent = 0.5 * ((antenna.diameter_m if antenna.kind == "dish" else antenna.length_m) or 0.0)
         near = [
             s.name
             for s in accessible
@@ -114,6 +132,8 @@ def _dish_beam_crossing(antenna: Antenna, surfaces, body_height: float) -> str |
     """Name of the first accessible surface that the dish's near-field beam cylinder
     (diameter D, out to the far-field distance 0.6·D²/λ of OET 65) passes through."""
     d = antenna.diameter_m
+    if not d:
+        return None
     r_ff = 0.6 * d**2 / antenna.wavelength_m
     az, el = math.radians(antenna.azimuth_deg), math.radians(antenna.elevation_deg)
     axis = np.array([math.sin(az) * math.cos(el), math.cos(az) * math.cos(el), math.sin(el)])
@@ -135,6 +155,30 @@ def _pct(ratio: float) -> str:
 
 
 def findings(site, surfaces, work, emitters, limits, measure_above) -> list[Flag]:
+    r"""The findings of an assessment, each with a stable code and a severity; the verdict is the worst.
+
+    Parameters
+    ----------
+    site : Site
+    surfaces : sequence of SurfaceResult
+    work : sequence of WorkPositionResult
+    emitters : sequence of EmitterResult
+    limits : SiteLimits
+    measure_above : float
+        Governing ratio from which a measurement is called for.
+
+    Returns
+    -------
+    list of Flag
+        Exceedances (``mitigate``), near-limit places, element zones, low frequencies,
+        dishes' near fields and assumed power reduction (``measure``), access control,
+        power-down and data notes (``info``).
+
+    References
+    ----------
+    47 CFR § 1.1307(b) (categories, the 5 % rule; docs/references.md §§ 2, 10); the ±3 dB band of the
+    models against the full-wave references (docs/references.md § 9).
+    """
     flags: list[Flag] = []
     operator_of = {e.id: e.operator for e in emitters}
     label = {"general_public": "general-public", "occupational": "occupational"}
@@ -230,6 +274,27 @@ def findings(site, surfaces, work, emitters, limits, measure_above) -> list[Flag
 
 
 def assumptions(site, grid_m, offsets, factor) -> list[Assumption]:
+    r"""The assumptions every worksheet states, in words.
+
+    Parameters
+    ----------
+    site : Site
+    grid_m : float
+        Map spacing [m].
+    offsets : ndarray
+        Heights sampled above each surface [m].
+    factor : float
+        Power reflection factor.
+
+    Returns
+    -------
+    list of Assumption
+
+    References
+    ----------
+    FCC OET Bulletin 65 (1997); IEC 62232 practice; ICNIRP 2020; the full-wave findings
+    (docs/references.md §§ 3, 7, 9, 11).
+    """
     info = site
     tabulated = [e.id for e in site.emitters if e.pattern_file]
     out = [

@@ -8,6 +8,7 @@ part of the JSON.
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from typing import Any
 
 import numpy as np
 
@@ -29,7 +30,7 @@ class Flag:
     work_position: str | None = None
 
     def to_json(self) -> dict:
-        out = {"code": self.code, "severity": self.severity, "message": self.message}
+        out: dict[str, Any] = {"code": self.code, "severity": self.severity, "message": self.message}
         if self.emitters:
             out["emitters"] = list(self.emitters)
         if self.surface is not None:

@@ -60,7 +60,7 @@ def assess(
     progress: ProgressCallback | None = None,
     sections: bool = False,
 ) -> Assessment:
-    """Assess a whole site: every emitter over every surface and work position.
+    r"""Assess a whole site: every emitter over every surface and work position.
 
     Parameters
     ----------
@@ -81,6 +81,12 @@ def assess(
     Returns
     -------
     Assessment
+
+    References
+    ----------
+    Total exposure ratio Σ S_i/S_L,i: IEC 62232 / ITU-T K.52 practice, ICNIRP 2020 multiple-frequency
+    rule (docs/references.md §§ 4, 7); the models' sources (:mod:`exposure.models`); categories, zones
+    and the 5 % rule: 47 CFR § 1.1307(b) (docs/references.md §§ 2, 10).
     """
     if not 0 < measure_above <= 1:
         from exposure.errors import InputError

@@ -33,11 +33,38 @@ def section(
     z_range_m: tuple[float, float] | None = None,
     step_m: float | None = None,
 ) -> tuple[np.ndarray, np.ndarray, dict[str, np.ndarray]]:
-    """Total ratio per tier on a vertical plane along an emitter's boresight azimuth.
+    r"""Total ratio per tier on a vertical plane along an emitter's boresight azimuth.
 
-    Returns ``(s_m, z_m, ratio)`` with ``s_m`` the horizontal distance from the emitter
-    along its azimuth (negative behind), ``z_m`` site heights and ``ratio[tier]`` of shape
-    (len(z_m), len(s_m)), summed over all emitters.
+    Parameters
+    ----------
+    site : Site
+    emitter_id : str
+        The emitter whose boresight azimuth the plane follows.
+    half_length_m : float
+        Extent in front and behind [m].
+    z_range_m : (float, float), optional
+        Heights [m]; default from the lowest surface to above the emitter.
+    step_m : float, optional
+        Sampling [m]; default half_length/150, at least 5 cm.
+
+    Returns
+    -------
+    s_m : ndarray
+        Horizontal distance from the emitter along its azimuth (negative behind) [m].
+    z_m : ndarray
+        Site heights [m].
+    ratio : dict
+        tier -> (len(z_m), len(s_m)) total over all emitters.
+
+    Raises
+    ------
+    UnknownKeyError
+        *emitter_id* is not in the site.
+
+    References
+    ----------
+    Total exposure ratio Σ S_i/S_L,i: IEC 62232 / ITU-T K.52 practice, ICNIRP 2020 multiple-frequency
+    rule (docs/references.md §§ 4, 7).
     """
     site = prepared_site(site)
     index = next((i for i, a in enumerate(site.antennas) if a.id == emitter_id), None)
@@ -71,7 +98,21 @@ MAX_SECTIONS = 2
 
 
 def choose_section_emitters(emitters: Sequence[EmitterResult]) -> list[EmitterResult]:
-    """The strongest emitters by main-beam general-public boundary, one per direction."""
+    r"""The strongest emitters by main-beam general-public boundary, one per direction.
+
+    Parameters
+    ----------
+    emitters : sequence of EmitterResult
+
+    Returns
+    -------
+    list of EmitterResult
+        At most :data:`MAX_SECTIONS`.
+
+    References
+    ----------
+    None published: the worksheet's choice of figures.
+    """
     ranked = sorted(emitters, key=lambda e: (-e.main_beam_boundary_m.get("general_public", 0.0), e.id))
     chosen: list[EmitterResult] = []
     for e in ranked:
@@ -91,8 +132,30 @@ def choose_section_emitters(emitters: Sequence[EmitterResult]) -> list[EmitterRe
 def section_extent(
     e: EmitterResult, emitters: Sequence[EmitterResult], floor_m: float, body_height_m: float
 ) -> tuple[float, tuple[float, float]]:
-    """Half-length [m] and height range [m] of the section through *e*: its boundaries with room
-    around them, from just below the lowest surface (*floor_m*) to above every emitter's reach."""
+    r"""Half-length [m] and height range [m] of the section through *e*: its boundaries with room
+    around them, from just below the lowest surface (*floor_m*) to above every emitter's reach.
+
+    Parameters
+    ----------
+    e : EmitterResult
+        The emitter the section goes through.
+    emitters : sequence of EmitterResult
+        All of them (the plane's top clears every emitter's reach).
+    floor_m : float
+        Elevation of the lowest surface [m].
+    body_height_m : float
+
+    Returns
+    -------
+    half_length : float
+        [m].
+    z_range : (float, float)
+        [m].
+
+    References
+    ----------
+    None published: the worksheet's choice of figures.
+    """
     gp = e.boundary_m["general_public"]
     reach = max(e.main_beam_boundary_m.get("general_public", 0.0), gp["front"], gp["back"], 1.0)
     lo, hi = SECTION_HALF_LENGTH_RANGE_M
@@ -104,7 +167,21 @@ def section_extent(
 
 
 def worksheet_sections(site: Site, emitters: Sequence[EmitterResult]) -> tuple[Section, ...]:
-    """The sections a worksheet shows: through the strongest beams, one per direction."""
+    r"""The sections a worksheet shows: through the strongest beams, one per direction.
+
+    Parameters
+    ----------
+    site : Site
+    emitters : sequence of EmitterResult
+
+    Returns
+    -------
+    tuple of Section
+
+    References
+    ----------
+    None published: the worksheet's choice of figures; the values are :func:`section`'s.
+    """
     floor = min(s.elevation_m for s in site.surfaces)
     out = []
     for e in choose_section_emitters(emitters):

@@ -8,6 +8,7 @@ from __future__ import annotations
 import math
 from collections.abc import Sequence
 from dataclasses import dataclass
+from typing import cast
 
 import numpy as np
 
@@ -42,10 +43,28 @@ area where the limit is exceeded (47 CFR § 1.1307(b)(3), multiple-transmitter s
 
 
 def surface_cells(surface, grid_m: float) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """Cell-centre axes over the surface's bounding box and the mask of centres on it
-    (inside the outline, outside every hole; :mod:`exposure.geometry`).
+    r"""Cell-centre axes over the surface's bounding box and the mask of centres on it.
 
+    Parameters
+    ----------
+    surface : Surface
+    grid_m : float
+        Cell spacing [m].
+
+    Returns
+    -------
+    x, y : ndarray
+        Cell-centre axes [m].
+    inside : ndarray of bool, shape (len(y), len(x))
+        Centres on the surface (inside the outline, outside every hole).
+
+    Notes
+    -----
     A surface smaller than one cell still gets the cell of a point on it.
+
+    References
+    ----------
+    None published: plan geometry (:mod:`exposure.geometry`).
     """
     polygon = surface.polygon
     x0, y0, x1, y1 = polygon.bounds
@@ -81,19 +100,38 @@ class Columns:
     y: np.ndarray
     ratio: dict[str, np.ndarray]  # tier -> reduced total per column
     at_z: dict[str, np.ndarray]  # tier -> height of the column's peak (its base for averages)
-    local_governs: dict[str, np.ndarray] | None = None  # tier -> the local criterion gives the ratio
+    local_governs: dict[str, np.ndarray]  # tier -> the local criterion gives the ratio
     shares: tuple | None = None  # (column indices above the public limit, tier -> (emitters, columns) shares)
 
 
 def element_cells(
     antennas: Sequence[Antenna], cx: np.ndarray, cy: np.ndarray, z_low: float, z_high: float, cell_m: float
 ) -> np.ndarray:
-    """Cells (centres cx, cy, side cell_m) from which a person standing from z_low to z_high
-    reaches an emitter's element zone (:func:`exposure.models.element_zone`).
+    r"""Cells from which a person standing from z_low to z_high reaches an emitter's element zone.
 
+    Parameters
+    ----------
+    antennas : sequence of Antenna
+    cx, cy : ndarray
+        Cell centres [m].
+    z_low, z_high : float
+        Heights a standing person occupies [m].
+    cell_m : float
+        Cell side [m].
+
+    Returns
+    -------
+    ndarray of bool
+
+    Notes
+    -----
     A cell counts where any point of its body-height column, sampled every quarter of the
     zone's reach in height, is within the reach plus half the cell's diagonal: a zone
     smaller than a cell is still marked (conservative).
+
+    References
+    ----------
+    The element zone of docs/references.md § 9.
     """
     marked = np.zeros(len(cx), dtype=bool)
     inflate = math.sqrt(0.5) * cell_m
@@ -131,7 +169,7 @@ def _evaluate_columns(
     at_z = {tier: np.empty(len(cx)) for tier in TIERS}
     local_governs = {tier: np.zeros(len(cx), dtype=bool) for tier in TIERS}
     kept_index: list[np.ndarray] = []  # columns above the public limit: their per-emitter shares, for the zones
-    kept = {tier: [] for tier in TIERS}
+    kept: dict[str, list[np.ndarray]] = {tier: [] for tier in TIERS}
     chunk = max(1, POINT_BUDGET // (n_e * n_h))
     for start in range(0, len(cx), chunk):
         sl = slice(start, start + chunk)
@@ -183,17 +221,35 @@ nobody stands inside the antenna itself."""
 
 
 def hot_spots(surface, antennas: Sequence[Antenna], body_height_m: float) -> tuple[np.ndarray, np.ndarray]:
-    """Points of a surface where an emitter's field peaks and a grid can miss it.
+    r"""Points of a surface where an emitter's field peaks and a grid can miss it.
 
+    Parameters
+    ----------
+    surface : Surface
+    antennas : sequence of Antenna
+    body_height_m : float
+
+    Returns
+    -------
+    x, y : ndarray
+        Points on the surface [m].
+
+    Notes
+    -----
     For each emitter: points along its boresight azimuth from ``HOT_SPOT_FROM_M`` to 20 m
     (log-spaced), and the point of the outline nearest below it where people can stand
     under the antenna (its lowest part above their heads), wherever they fall on the
     surface. Evaluated besides the grid so that a narrow zone in front of or below an
     antenna is never lost between cell centres (conservative).
+
+    References
+    ----------
+    None published: this project's guard against narrow zones between cell centres.
     """
     polygon = surface.polygon
     top = surface.elevation_m + body_height_m
-    xs, ys = [], []
+    xs: list[float] = []
+    ys: list[float] = []
     steps = np.geomspace(HOT_SPOT_FROM_M, 20.0, 48)
     for antenna in antennas:
         ax, ay = antenna.position_m[0], antenna.position_m[1]
@@ -211,6 +267,35 @@ def hot_spots(surface, antennas: Sequence[Antenna], body_height_m: float) -> tup
 
 
 def evaluate_surface(site, surface, limits: SiteLimits, offsets, grid_m, progress, done_total):
+    r"""Evaluate one surface: its grid, the hot spots, and the running shares and headroom.
+
+    Parameters
+    ----------
+    site : Site
+    surface : Surface
+    limits : SiteLimits
+    offsets : ndarray
+        Heights sampled above the surface [m].
+    grid_m : float
+        Cell spacing [m].
+    progress : callable or None
+        ``progress(done, total)`` in point-emitter units.
+    done_total : list of two ints
+        The running count and the total, shared across surfaces.
+
+    Returns
+    -------
+    grid : SurfaceGrid
+    cells, spots : Columns
+        Totals at the cell centres and at the hot spots.
+    acc : SurfaceAccumulator
+        Each emitter's largest share where the limit is exceeded, and its headroom.
+
+    References
+    ----------
+    Total exposure ratio Σ S_i/S_L,i: IEC 62232 / ITU-T K.52 practice, ICNIRP 2020 multiple-frequency
+    rule (docs/references.md §§ 4, 7).
+    """
     x, y, inside = surface_cells(surface, grid_m)
     cell_index = np.flatnonzero(inside.ravel())
     gx, gy = np.meshgrid(x, y)
@@ -237,10 +322,26 @@ def evaluate_surface(site, surface, limits: SiteLimits, offsets, grid_m, progres
 
 
 def surface_zones(site, surface, grid, cells: Columns, spots: Columns, limits: SiteLimits, offsets, grid_m):
-    """The surface's zones (:mod:`exposure.assessment.zones`): polygons from the map, and each emitter's
-    share of its own limit at the places inside them — kept from the map's evaluation for the
-    cells above the public limit, evaluated again only for the rest (the zones' rims, where
-    the contour passes between cells) and the hot spots above the public limit."""
+    r"""The surface's zones (:mod:`exposure.assessment.zones`), with each emitter's share inside them.
+
+    Parameters
+    ----------
+    site : Site
+    surface : Surface
+    grid : SurfaceGrid
+    cells, spots : Columns
+    limits : SiteLimits
+    offsets : ndarray
+    grid_m : float
+
+    Returns
+    -------
+    list of Zone
+
+    References
+    ----------
+    47 CFR § 1.1307(b) categories and the 5 % rule (docs/references.md §§ 2, 10).
+    """
     polygon = surface.polygon
     outer = zone_polygons(grid.x_m, grid.y_m, grid.ratio["general_public"], 1.0, polygon)
     inside = np.zeros(len(cells.x), dtype=bool)
@@ -312,7 +413,8 @@ def _exceedance_polygons(grid: SurfaceGrid, tier: str) -> list[list[tuple[float,
     import contourpy
 
     generator = contourpy.contour_generator(grid.x_m, grid.y_m, np.ma.masked_invalid(values), fill_type="OuterOffset")
-    points, offsets = generator.filled(1.0, float(np.nanmax(values)) * 2 + 1.0)
+    filled = generator.filled(1.0, float(np.nanmax(values)) * 2 + 1.0)
+    points, offsets = cast("tuple[list[np.ndarray], list[np.ndarray]]", filled)  # fill_type OuterOffset
     rings = []
     for pts, offs in zip(points, offsets, strict=True):
         outer = pts[offs[0] : offs[1]]
@@ -321,6 +423,27 @@ def _exceedance_polygons(grid: SurfaceGrid, tier: str) -> list[list[tuple[float,
 
 
 def surface_result(site, surface, grid, cells: Columns, spots: Columns, acc) -> SurfaceResult:
+    r"""The result of one surface: maxima (grid and hot spots), areas, exceedance polygons,
+    responsibility, headroom and the criterion that governs.
+
+    Parameters
+    ----------
+    site : Site
+    surface : Surface
+    grid : SurfaceGrid
+    cells, spots : Columns
+    acc : SurfaceAccumulator
+
+    Returns
+    -------
+    SurfaceResult
+
+    References
+    ----------
+    Total exposure ratio Σ S_i/S_L,i: IEC 62232 / ITU-T K.52 practice, ICNIRP 2020 multiple-frequency
+    rule (docs/references.md §§ 4, 7).
+    47 CFR § 1.1307(b)(3), the 5 % rule (docs/references.md § 2).
+    """
     governing = ACCESS_TIER.get(surface.access)
     cell_area = (grid.x_m[1] - grid.x_m[0] if len(grid.x_m) > 1 else site.grid_m) * (
         grid.y_m[1] - grid.y_m[0] if len(grid.y_m) > 1 else site.grid_m

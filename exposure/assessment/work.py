@@ -13,6 +13,30 @@ from exposure.assessment.results import (
 
 
 def work_position(site, position, limits: SiteLimits, offsets) -> WorkPositionResult:
+    r"""A worker's exposure at a work position, and who must power down before work there.
+
+    Parameters
+    ----------
+    site : Site
+    position : WorkPosition
+    limits : SiteLimits
+    offsets : ndarray
+        Heights sampled above the standing level [m].
+
+    Returns
+    -------
+    WorkPositionResult
+        The totals per tier; each emitter's contribution to the occupational total; the
+        emitters to power down, largest contribution first, until the rest is within the
+        occupational limit, and their operators.
+
+    References
+    ----------
+    Total exposure ratio Σ S_i/S_L,i: IEC 62232 / ITU-T K.52 practice, ICNIRP 2020 multiple-frequency
+    rule (docs/references.md §§ 4, 7).
+    Power-down and lockout before entering an exclusion zone: common practice (IEEE C95.7;
+    docs/references.md § 10).
+    """
     evaluation = site.evaluation
     ratio, totals = body_column(site, position.x_m, position.y_m, position.z_m, limits)
     occupational = ratio["occupational"]

@@ -27,6 +27,7 @@ from __future__ import annotations
 
 from collections.abc import Sequence
 from dataclasses import dataclass, field
+from typing import cast
 
 import numpy as np
 import shapely
@@ -63,7 +64,22 @@ RESPONSIBILITY_SHARE = 0.05
 
 
 def category_of(ratio_public: float, ratio_occupational: float) -> int:
-    """The exposure category (1–4) of a place from its total ratios against both tiers."""
+    r"""The exposure category (1–4) of a place from its total ratios against both tiers.
+
+    Parameters
+    ----------
+    ratio_public, ratio_occupational : float
+        Total exposure ratios against the general-public and occupational limits.
+
+    Returns
+    -------
+    int
+        1 (below the public limit) to 4 (above ten times the occupational limit).
+
+    References
+    ----------
+    47 CFR § 1.1307(b) as amended by FCC 19-126; IEEE C95.7 (docs/references.md § 10).
+    """
     if ratio_occupational > 10.0:
         return 4
     if ratio_occupational > 1.0:
@@ -74,10 +90,26 @@ def category_of(ratio_public: float, ratio_occupational: float) -> int:
 
 
 def category_thresholds_w_m2(limit_public_w_m2: float, limit_occupational_w_m2: float) -> dict[int, float]:
-    """Power densities [W/m²] at which categories 2, 3 and 4 begin, for one frequency.
+    r"""Power densities at which categories 2, 3 and 4 begin, for one frequency [W/m²].
 
+    Parameters
+    ----------
+    limit_public_w_m2, limit_occupational_w_m2 : float
+        The two limits at one frequency [W/m²].
+
+    Returns
+    -------
+    dict of int to float
+        Category -> the power density at which it begins [W/m²].
+
+    Notes
+    -----
     At 850 MHz under 47 CFR § 1.1310 Table 1: f/1500 = 0.567 mW/cm² = 5.67 W/m², f/300 =
     28.3 W/m² and ten times that, 283 W/m² (docs/references.md § 10 check values).
+
+    References
+    ----------
+    47 CFR § 1.1307(b) as amended by FCC 19-126; IEEE C95.7 (docs/references.md § 10).
     """
     return {2: float(limit_public_w_m2), 3: float(limit_occupational_w_m2), 4: 10.0 * float(limit_occupational_w_m2)}
 
@@ -170,10 +202,30 @@ def _filled(values: np.ndarray, steps: int = 2) -> np.ndarray:
 def zone_polygons(
     x_m: np.ndarray, y_m: np.ndarray, ratio: np.ndarray, level: float, surface: shapely.Polygon
 ) -> list[shapely.Polygon]:
-    """Connected regions where *ratio* (cell centres, NaN off the surface) exceeds *level*.
+    r"""Connected regions where *ratio* (cell centres, NaN off the surface) exceeds *level*.
 
+    Parameters
+    ----------
+    x_m, y_m : ndarray
+        Cell-centre axes [m].
+    ratio : ndarray, shape (len(y_m), len(x_m))
+        Total ratio at cell centres, NaN off the surface.
+    level : float
+        The ratio the zone exceeds.
+    surface : shapely.Polygon
+
+    Returns
+    -------
+    list of shapely.Polygon
+
+    Notes
+    -----
     Marching squares (contourpy) on the grid, extended to the surface's edge, then clipped to
     the surface (never into a hole or off the outline). Polygons keep their holes.
+
+    References
+    ----------
+    None published: marching squares (contourpy) and polygon clipping (shapely).
     """
     import contourpy
 
@@ -188,7 +240,8 @@ def zone_polygons(
     y = np.concatenate([[y_m[0] - dy], y_m, [y_m[-1] + dy]])
     padded = np.pad(values, 1, mode="edge")
     generator = contourpy.contour_generator(x, y, np.ma.masked_invalid(padded), fill_type="OuterOffset")
-    points, offsets = generator.filled(level, float(finite.max()) * 2.0 + 1.0)
+    filled = generator.filled(level, float(finite.max()) * 2.0 + 1.0)
+    points, offsets = cast("tuple[list[np.ndarray], list[np.ndarray]]", filled)  # fill_type OuterOffset
     pieces = []
     for pts, offs in zip(points, offsets, strict=True):
         rings = [pts[a:b] for a, b in zip(offs[:-1], offs[1:], strict=True)]
@@ -235,7 +288,7 @@ def zones_of_surface(
     cell_m: float,
     public_parts: list[shapely.Polygon] | None = None,
 ) -> list[Zone]:
-    """Every zone of one surface.
+    r"""Every zone of one surface.
 
     Parameters
     ----------
@@ -257,6 +310,15 @@ def zones_of_surface(
         (a zone smaller than one cell is still a zone).
     public_parts : list of shapely.Polygon, optional
         :func:`zone_polygons` of the public limit, where the caller has them already.
+
+    Returns
+    -------
+    list of Zone
+        One per connected region of each category present, categories 2, 3, 4 in turn.
+
+    References
+    ----------
+    47 CFR § 1.1307(b) categories and the 5 % rule; IEEE C95.7 (docs/references.md §§ 2, 10).
     """
     x, y = places["x"], places["y"]
     zones: list[Zone] = []
@@ -294,7 +356,7 @@ def zones_of_surface(
                     polygon=polygon,
                     area_m2=round(float(polygon.area), 4),
                     max_ratio={t: float(places[t]["total"][k]) for t in ("general_public", "occupational")},
-                    max_at_m=tuple(round(v, 3) for v in where),
+                    max_at_m=(round(where[0], 3), round(where[1], 3), round(where[2], 3)),
                     responsible_emitters=tuple(ids[i] for i in responsible),
                     responsible_operators=tuple(dict.fromkeys(operators[i] for i in responsible)),
                     power_down=tuple(ids[i] for i in off),
@@ -306,10 +368,24 @@ def zones_of_surface(
 
 
 def signs_for(zones: Sequence[Zone], access_points, surfaces_elevation: dict[str, float]) -> list[Sign]:
-    """Where the signs go: at every access point onto a surface that leads into a zone there
-    (one per category present), and on each zone's edge — at the point of its boundary nearest
-    to each access point of the surface, or, where the surface declares none, nearest to the
-    zone's own maximum."""
+    r"""Where the signs go: at every access point that leads into a zone, and on each zone's edge.
+
+    Parameters
+    ----------
+    zones : sequence of Zone
+    access_points : sequence of AccessPoint
+    surfaces_elevation : dict of str to float
+        Each surface's elevation [m].
+
+    Returns
+    -------
+    list of Sign
+
+    References
+    ----------
+    47 CFR § 1.1307(b) as amended by FCC 19-126 (signs and their words); IEEE C95.7
+    (docs/references.md § 10).
+    """
     signs: list[Sign] = []
     by_surface: dict[str, list] = {}
     for point in access_points:

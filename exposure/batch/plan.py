@@ -188,7 +188,9 @@ def site_fingerprint(site, grid_m: float | None) -> str:
         "tool_version": __version__,
         "input_sha256": site.sha256,
         "limits": [site.table.key, _file_sha256(Path(site.table.path))],
-        "patterns": sorted(_file_sha256(site.path.parent / e.pattern_file) for e in site.emitters if e.pattern_file),
+        "patterns": sorted(
+            (_file_sha256(site.path.parent / e.pattern_file) for e in site.emitters if e.pattern_file), key=str
+        ),
         "grid_m": grid_m,
     }
     return hashlib.sha256(json.dumps(parts, sort_keys=True).encode()).hexdigest()

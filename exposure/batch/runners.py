@@ -10,6 +10,7 @@ import time
 import uuid
 from collections.abc import Iterator, Sequence
 from contextlib import contextmanager
+from typing import Any
 
 from exposure.batch.plan import SiteTask
 from exposure.batch.rows import SiteRow, first_line
@@ -69,7 +70,7 @@ class ProcessPoolRunner:
     def __exit__(self, *exc) -> None:
         return None
 
-    def run(self, tasks: Sequence[SiteTask]) -> Iterator[tuple[SiteTask, SiteRow]]:
+    def run(self, tasks: Sequence[SiteTask]) -> Iterator[tuple[SiteTask, SiteRow | None]]:
         import multiprocessing
         from concurrent.futures import ProcessPoolExecutor, as_completed
 
@@ -87,7 +88,7 @@ class ProcessPoolRunner:
             for future in as_completed(futures):
                 task = futures[future]
                 try:
-                    row = future.result()
+                    row: SiteRow | None = future.result()
                 except Exception as exc:  # e.g. BrokenProcessPool: a worker was killed
                     row = SiteRow(
                         task.file,
@@ -158,7 +159,8 @@ def _pool_task(task: SiteTask) -> SiteRow | None:
     try:
         return run_site(task)
     except KeyboardInterrupt:
-        _STOP.set()  # before the parent can: this worker takes no queued site next
+        if _STOP is not None:  # before the parent can: this worker takes no queued site next
+            _STOP.set()
         raise
     finally:
         signal.signal(signal.SIGINT, signal.SIG_IGN)
@@ -181,7 +183,7 @@ class DaskRunner:
         self.address = address
         self.timeout_s = timeout_s
         self.description = f"dask scheduler {address}"
-        self.client = None
+        self.client: Any = None
 
     def __enter__(self) -> DaskRunner:
         try:

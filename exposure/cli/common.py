@@ -100,7 +100,7 @@ class Progress:
     def __init__(self, label: str, quiet: bool = False) -> None:
         self.enabled = not quiet and is_terminal()
         self.label = label
-        self._bar = None
+        self._bar: Any = None
         self._task = None
 
     def __enter__(self) -> Progress:

@@ -30,7 +30,7 @@ def parse_point(text: str) -> tuple[float, float, float]:
         values = ()
     if len(values) != 3 or not all(math.isfinite(v) for v in values):
         raise InputError(f"--at: {text!r} must be three finite numbers X,Y,Z in metres, e.g. --at 12,20,1.5")
-    return values  # type: ignore[return-value]
+    return values
 
 
 def probe(

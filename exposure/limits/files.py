@@ -36,7 +36,7 @@ _QUANTITY_KEYS = (
 
 
 def load_standard(key: str) -> LimitTable:
-    """A built-in limit table by key.
+    r"""A built-in limit table by key.
 
     Parameters
     ----------
@@ -53,6 +53,19 @@ def load_standard(key: str) -> LimitTable:
     ------
     exposure.errors.UnknownKeyError
         If the key is not a built-in standard; the message lists the known keys.
+
+    Examples
+    --------
+    The general-public MPE of 47 CFR § 1.1310 Table 1 at 1900 MHz (1 mW/cm²):
+
+    >>> load_standard("fcc").power_density_limit_w_m2(1900.0, "general_public")
+    10.0
+
+    References
+    ----------
+    47 CFR § 1.1310(e)(1), Table 1; ICNIRP 2020 Tables 5 and 6; ICNIRP 1998 Tables 6 and 7; Health
+    Canada Safety Code 6 (2015) — each file names its source, edition, table and status
+    (docs/references.md §§ 1, 4–6, 11).
     """
     normal = str(key).strip().lower()
     if normal not in STANDARDS:
@@ -61,7 +74,7 @@ def load_standard(key: str) -> LimitTable:
 
 
 def load_limits_file(path: str | Path) -> LimitTable:
-    """A user's own limit table (for example a local code), validated strictly.
+    r"""A user's own limit table (for example a local code), validated strictly.
 
     Parameters
     ----------
@@ -79,6 +92,12 @@ def load_limits_file(path: str | Path) -> LimitTable:
         With one problem per bad field, each naming the field's path (e.g.
         ``tiers.occupational.bands[2].e_v_m.coef``) and the reason; a TOML syntax error
         names the line.
+
+    References
+    ----------
+    47 CFR § 1.1310(e)(1), Table 1; ICNIRP 2020 Tables 5 and 6; ICNIRP 1998 Tables 6 and 7; Health
+    Canada Safety Code 6 (2015) — each file names its source, edition, table and status
+    (docs/references.md §§ 1, 4–6, 11).
     """
     from exposure.inputs import TABLE_MAX_BYTES, read_input
 
@@ -87,7 +106,7 @@ def load_limits_file(path: str | Path) -> LimitTable:
 
 
 def resolve(standard: str | None = None, limits_file: str | Path | None = None) -> LimitTable:
-    """The limit table a command asked for.
+    r"""The limit table a command asked for.
 
     Parameters
     ----------
@@ -99,6 +118,12 @@ def resolve(standard: str | None = None, limits_file: str | Path | None = None) 
     Returns
     -------
     LimitTable
+
+    References
+    ----------
+    47 CFR § 1.1310(e)(1), Table 1; ICNIRP 2020 Tables 5 and 6; ICNIRP 1998 Tables 6 and 7; Health
+    Canada Safety Code 6 (2015) — each file names its source, edition, table and status
+    (docs/references.md §§ 1, 4–6, 11).
     """
     if limits_file is not None:
         return load_limits_file(limits_file)
@@ -107,6 +132,23 @@ def resolve(standard: str | None = None, limits_file: str | Path | None = None) 
 
 @functools.cache
 def load_builtin(key: str) -> LimitTable:
+    r"""A built-in table by its file key (the tables of ``limits/`` and ``limits/local/``), cached.
+
+    Parameters
+    ----------
+    key : str
+        The file's name without ``.toml``.
+
+    Returns
+    -------
+    LimitTable
+
+    References
+    ----------
+    47 CFR § 1.1310(e)(1), Table 1; ICNIRP 2020 Tables 5 and 6; ICNIRP 1998 Tables 6 and 7; Health
+    Canada Safety Code 6 (2015) — each file names its source, edition, table and status
+    (docs/references.md §§ 1, 4–6, 11).
+    """
     path = _builtin_path(key)
     table = _parse(path.read_bytes(), path)
     if table.key != key:

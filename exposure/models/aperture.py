@@ -45,17 +45,86 @@ OFF_AXIS_FLOOR = 0.01
 
 
 def near_field_extent_m(diameter_m, wavelength_m):
-    r"""Extent of the near field on axis, :math:`R_{nf} = D^2/(4\lambda)` [m] (OET 65)."""
+    r"""Extent of the near field on the beam axis, :math:`R_{nf} = D^2/(4\lambda)` [m].
+
+    Parameters
+    ----------
+    diameter_m, wavelength_m : array_like
+        Reflector diameter :math:`D` and wavelength :math:`\lambda` [m].
+
+    Returns
+    -------
+    ndarray
+        :math:`R_{nf}` [m].
+
+    Examples
+    --------
+    The check of docs/references.md § 3 (D 3 m at 6 GHz):
+
+    >>> round(float(near_field_extent_m(3.0, 299_792_458.0 / 6e9)), 1)
+    45.0
+
+    References
+    ----------
+    FCC OET Bulletin 65, Edition 97-01 (1997), Section 2, aperture antennas (from memory;
+    docs/references.md § 3).
+    """
     return np.asarray(diameter_m, dtype=float) ** 2 / (4.0 * np.asarray(wavelength_m, dtype=float))
 
 
 def far_field_start_m(diameter_m, wavelength_m):
-    r"""Start of the far field on axis, :math:`R_{ff} = 0.6\,D^2/\lambda` [m] (OET 65)."""
+    r"""Start of the far field on the beam axis, :math:`R_{ff} = 0.6\,D^2/\lambda` [m].
+
+    Parameters
+    ----------
+    diameter_m, wavelength_m : array_like
+        Reflector diameter :math:`D` and wavelength :math:`\lambda` [m].
+
+    Returns
+    -------
+    ndarray
+        :math:`R_{ff}` [m].
+
+    Examples
+    --------
+    >>> round(float(far_field_start_m(3.0, 299_792_458.0 / 6e9)), 1)
+    108.1
+
+    References
+    ----------
+    FCC OET Bulletin 65, Edition 97-01 (1997), Section 2, aperture antennas (from memory;
+    docs/references.md § 3).
+    """
     return 0.6 * np.asarray(diameter_m, dtype=float) ** 2 / np.asarray(wavelength_m, dtype=float)
 
 
 def near_field_power_density(net_power_w, diameter_m, aperture_efficiency):
-    r"""Maximum on-axis near-field power density, :math:`S_{nf} = 16\eta P/(\pi D^2)` [W/m²] (OET 65)."""
+    r"""Maximum on-axis near-field power density, :math:`S_{nf} = 16\eta P/(\pi D^2)` [W/m²].
+
+    Parameters
+    ----------
+    net_power_w : array_like
+        Power fed to the dish :math:`P` [W].
+    diameter_m : array_like
+        Reflector diameter :math:`D` [m].
+    aperture_efficiency : array_like
+        :math:`\eta`, 0..1.
+
+    Returns
+    -------
+    ndarray
+        :math:`S_{nf}` [W/m²], valid out to :math:`R_{nf}`.
+
+    Examples
+    --------
+    >>> round(float(near_field_power_density(100.0, 3.0, 0.55)), 1)
+    31.1
+
+    References
+    ----------
+    FCC OET Bulletin 65, Edition 97-01 (1997), Section 2, aperture antennas (from memory;
+    docs/references.md § 3).
+    """
     d = np.asarray(diameter_m, dtype=float)
     return (
         16.0 * np.asarray(aperture_efficiency, dtype=float) * np.asarray(net_power_w, dtype=float) / (math.pi * d * d)
@@ -63,7 +132,31 @@ def near_field_power_density(net_power_w, diameter_m, aperture_efficiency):
 
 
 def dish_gain(diameter_m, wavelength_m, aperture_efficiency):
-    r"""Gain of a dish, :math:`G = \eta(\pi D/\lambda)^2` [linear] (OET 65)."""
+    r"""Gain of a dish, :math:`G = \eta(\pi D/\lambda)^2` [linear].
+
+    Parameters
+    ----------
+    diameter_m, wavelength_m : array_like
+        Reflector diameter and wavelength [m].
+    aperture_efficiency : array_like
+        :math:`\eta`, 0..1.
+
+    Returns
+    -------
+    ndarray
+        Peak gain, linear.
+
+    Examples
+    --------
+    >>> import math
+    >>> round(10 * math.log10(float(dish_gain(3.0, 299_792_458.0 / 6e9, 0.55))), 1)
+    42.9
+
+    References
+    ----------
+    FCC OET Bulletin 65, Edition 97-01 (1997), Section 2, aperture antennas (from memory;
+    docs/references.md § 3).
+    """
     return (
         np.asarray(aperture_efficiency, dtype=float)
         * (math.pi * np.asarray(diameter_m, dtype=float) / np.asarray(wavelength_m, dtype=float)) ** 2
@@ -86,11 +179,21 @@ def on_axis_power_density(net_power_w, diameter_m, wavelength_m, aperture_effici
     gain_linear : float, optional
         Gain for the far-field part; default :func:`dish_gain`.
 
+    Returns
+    -------
+    ndarray
+        Power density on the axis at each distance [W/m²].
+
     Notes
     -----
     See the module docstring for the three regions. The forms are not continuous at
     :math:`R_{ff}`: with :math:`G=\eta(\pi D/\lambda)^2` the far field is 3 % above the
     transition value there, as in OET 65.
+
+    References
+    ----------
+    FCC OET Bulletin 65, Edition 97-01 (1997), Section 2, aperture antennas (from memory;
+    docs/references.md § 3).
     """
     r = np.asarray(distance_m, dtype=float)
     r_nf = float(near_field_extent_m(diameter_m, wavelength_m))
@@ -111,12 +214,48 @@ def on_axis_power_density(net_power_w, diameter_m, wavelength_m, aperture_effici
 
 
 def reflector_surface_power_density(net_power_w, diameter_m):
-    r"""Power density at the reflector surface, :math:`S = 4P/A` [W/m²] (OET 65)."""
+    r"""Power density at the reflector surface, :math:`S = 4P/A` [W/m²], :math:`A = \pi D^2/4`.
+
+    Parameters
+    ----------
+    net_power_w : array_like
+        Power fed to the dish [W].
+    diameter_m : array_like
+        Reflector diameter [m].
+
+    Returns
+    -------
+    ndarray
+        [W/m²].
+
+    References
+    ----------
+    FCC OET Bulletin 65, Edition 97-01 (1997), Section 2, aperture antennas (from memory;
+    docs/references.md § 3).
+    """
     return 4.0 * np.asarray(net_power_w, dtype=float) / (math.pi * np.asarray(diameter_m, dtype=float) ** 2 / 4.0)
 
 
 def reflector_to_ground_power_density(net_power_w, diameter_m):
-    r"""Power density between the reflector and the ground, :math:`S = P/A` [W/m²] (OET 65)."""
+    r"""Power density between the reflector and the ground, :math:`S = P/A` [W/m²].
+
+    Parameters
+    ----------
+    net_power_w : array_like
+        Power fed to the dish [W].
+    diameter_m : array_like
+        Reflector diameter [m].
+
+    Returns
+    -------
+    ndarray
+        [W/m²].
+
+    References
+    ----------
+    FCC OET Bulletin 65, Edition 97-01 (1997), Section 2, aperture antennas (from memory;
+    docs/references.md § 3).
+    """
     return np.asarray(net_power_w, dtype=float) / (math.pi * np.asarray(diameter_m, dtype=float) ** 2 / 4.0)
 
 
@@ -129,6 +268,11 @@ def off_axis_factor(transverse_m, diameter_m):
         Distance from the beam axis :math:`\rho` [m].
     diameter_m : float
         Reflector diameter :math:`D` [m].
+
+    Returns
+    -------
+    ndarray
+        :math:`a(\rho)`, 1 inside the beam cylinder, falling to 0.01 at one diameter.
 
     Notes
     -----
@@ -146,6 +290,11 @@ def off_axis_factor(transverse_m, diameter_m):
     between the two the fall is taken log-linear, and beyond one diameter as spreading
     from the beam's edge, :math:`(D/\rho)^2` (this project's assumption, continuous at
     :math:`\rho = D`).
+
+    References
+    ----------
+    FCC OET Bulletin 65, Edition 97-01 (1997), Section 2, aperture antennas (from memory;
+    docs/references.md § 3).
     """
     rho = np.asarray(transverse_m, dtype=float)
     d = float(diameter_m)
@@ -170,6 +319,26 @@ def aperture_kernel(
 ) -> np.ndarray:
     r"""The aperture model on antenna-frame coordinates (1-d arrays) [W/m²].
 
+    Parameters
+    ----------
+    pattern : Pattern
+        The dish's relative pattern (ITU-R F.699 or tabulated cuts).
+    net_power_w, gain_linear : float
+        Power fed to the dish [W] and its peak gain (linear).
+    diameter_m, wavelength_m : float
+        Reflector diameter and wavelength [m].
+    aperture_efficiency : float
+        :math:`\eta`, 0..1.
+    forward, right, up : ndarray
+        Antenna-frame coordinates of the points [m] (:mod:`exposure.models.frames`).
+    r_min : float
+        Distance clamp [m] (:func:`exposure.models.farfield.minimum_distance_m`).
+
+    Returns
+    -------
+    ndarray
+        Power density without ground reflection [W/m²].
+
     Notes
     -----
     With :math:`x` the distance along the beam axis (antenna frame ``forward``),
@@ -188,6 +357,11 @@ def aperture_kernel(
 
     Inside the near field this is conservative: the on-axis value is the most OET 65
     expects anywhere at that distance and it is kept across the whole cylinder.
+
+    References
+    ----------
+    FCC OET Bulletin 65, Edition 97-01 (1997), Section 2 (from memory; docs/references.md § 3);
+    ITU-R F.699 reference pattern (docs/references.md § 8).
     """
     r_nf = float(near_field_extent_m(diameter_m, wavelength_m))
     r_ff = float(far_field_start_m(diameter_m, wavelength_m))

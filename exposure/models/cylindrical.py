@@ -20,7 +20,21 @@ __all__ = ["cylindrical_power_density", "crossover_distance_m", "cylindrical_ker
 
 
 def is_omni_width(h_beamwidth_deg) -> bool:
-    """True where the horizontal beamwidth means an omni (None or ≥ 360°)."""
+    r"""True where a horizontal beamwidth means an omni (None or ≥ 360°).
+
+    Parameters
+    ----------
+    h_beamwidth_deg : float or None
+        Horizontal half-power beamwidth [deg].
+
+    Returns
+    -------
+    bool
+
+    References
+    ----------
+    FCC OET Bulletin 65, Edition 97-01 (1997), Section 2 (from memory; docs/references.md § 3).
+    """
     return h_beamwidth_deg is None or float(h_beamwidth_deg) >= 360.0
 
 
@@ -51,9 +65,12 @@ def cylindrical_power_density(net_power_w, distance_m, aperture_height_m, h_beam
         S_{omni} = \frac{P}{2\pi R h},\qquad
         S_{dir} = \frac{180}{\theta_{BW}}\,\frac{P}{\pi R h}
 
-    Cylindrical model of FCC OET Bulletin 65, Edition 97-01 (1997), Section 2 (from
-    memory; docs/references.md § 3). Valid in the radiating near field, within the aperture's
+    Valid in the radiating near field, within the aperture's
     height and inside the crossover distance (:func:`crossover_distance_m`).
+
+    References
+    ----------
+    FCC OET Bulletin 65, Edition 97-01 (1997), Section 2 (from memory; docs/references.md § 3).
     """
     p = np.asarray(net_power_w, dtype=float)
     r = np.asarray(distance_m, dtype=float)
@@ -65,13 +82,38 @@ def cylindrical_power_density(net_power_w, distance_m, aperture_height_m, h_beam
 def crossover_distance_m(gain_linear: float, h_beamwidth_deg, aperture_height_m: float) -> float:
     r"""Distance where the cylindrical and the far-field forms are equal on boresight [m].
 
+    Parameters
+    ----------
+    gain_linear : float
+        Peak gain, linear.
+    h_beamwidth_deg : float or None
+        Horizontal half-power beamwidth [deg]; None or ≥ 360 for an omni.
+    aperture_height_m : float
+        Aperture height :math:`h` [m].
+
+    Returns
+    -------
+    float
+        :math:`R_c` [m].
+
+    Examples
+    --------
+    A 15 dBi panel, 65° wide, 1.9 m tall: the far-field form takes over beyond
+
+    >>> round(crossover_distance_m(10 ** 1.5, 65.0, 1.9), 2)
+    5.42
+
     Notes
     -----
     .. math:: R_c = \frac{G\,\theta_{BW}\,h}{720}
 
     with :math:`\theta_{BW}` in degrees (360 for an omni, where it reads :math:`Gh/2`).
-    FCC OET Bulletin 65 (1997) (from memory; docs/references.md § 3). It follows from equating
+    It follows from equating
     :func:`cylindrical_power_density` with :math:`PG/(4\pi R^2)`.
+
+    References
+    ----------
+    FCC OET Bulletin 65, Edition 97-01 (1997), Section 2 (from memory; docs/references.md § 3).
     """
     width = 360.0 if is_omni_width(h_beamwidth_deg) else float(h_beamwidth_deg)
     return float(gain_linear) * width * float(aperture_height_m) / 720.0
@@ -89,6 +131,26 @@ def cylindrical_kernel(
     r_min: float,
 ) -> np.ndarray:
     r"""The cylindrical model on antenna-frame coordinates (1-d arrays) [W/m²].
+
+    Parameters
+    ----------
+    pattern : Pattern
+        The antenna's relative pattern.
+    net_power_w, gain_linear : float
+        Power delivered to the antenna [W] and its peak gain (linear).
+    aperture_height_m : float
+        Aperture length :math:`h` [m].
+    h_beamwidth_deg : float or None
+        Horizontal half-power beamwidth (None for an omni) [deg].
+    forward, right, up : ndarray
+        Antenna-frame coordinates of the points [m].
+    r_min : float
+        Distance clamp [m].
+
+    Returns
+    -------
+    ndarray
+        Power density without ground reflection [W/m²].
 
     Notes
     -----
@@ -111,6 +173,10 @@ def cylindrical_kernel(
     "cylindrical inside :math:`R_c`, far field beyond", continuous at :math:`R_c`. In
     other directions it switches where the terms cross, which keeps the model continuous
     and never above the spherical model. All distances are clamped to ``r_min``.
+
+    References
+    ----------
+    FCC OET Bulletin 65, Edition 97-01 (1997), Section 2 (from memory; docs/references.md § 3).
     """
     half = 0.5 * aperture_height_m
     horizontal2 = forward * forward

@@ -33,12 +33,13 @@ power-reduction factor); nothing here applies them again.
 from __future__ import annotations
 
 import math
+from collections.abc import Callable
 
 import numpy as np
 
 from exposure.antenna import Antenna
 from exposure.errors import InputError, UnknownKeyError
-from exposure.models import aperture, cylindrical, farfield, synthetic
+from exposure.models import aperture, cylindrical, farfield, fresnel, synthetic
 from exposure.models.element import induction_margin
 from exposure.models.frames import (
     direction_from_angles,
@@ -47,6 +48,17 @@ from exposure.models.frames import (
 from exposure.models.prepared import Prepared, minimum_distance_m, prepare
 from exposure.patterns import Pattern
 from exposure.vocabulary import EVALUATIONS, MODELS
+
+Kernel = Callable[[np.ndarray, np.ndarray, np.ndarray], np.ndarray]
+"""A model on antenna-frame coordinates (forward, right, up) [m], giving W/m² without reflection."""
+
+
+def _given(value: float | None) -> float:
+    """A quantity :func:`model_for` has made sure of."""
+    if value is None:  # pragma: no cover - model_for refuses a model without it
+        raise AssertionError("model_for lets no model run without the quantity it needs")
+    return value
+
 
 REFLECTION_FACTORS: dict[str, float] = {"none": 1.0, "typical": 2.56, "full": 4.0}
 """Ground-reflection factors on power density (OET 65: field ×1.6 → power ×2.56; ×2 → ×4)."""
@@ -67,10 +79,24 @@ def reflection_factor(reflection: str | float) -> float:
         (×2 field, ×4 power); a number is taken as the power factor itself,
         :math:`(1+|\Gamma|)^2`, between 1 and 4.
 
+    Returns
+    -------
+    float
+        The factor on power density, 1 to 4.
+
+    Examples
+    --------
+    >>> reflection_factor("typical")
+    2.56
+
     Notes
     -----
     The factor multiplies every model everywhere, as if the reflected wave added in
-    phase at every point: conservative (FCC OET Bulletin 65, 1997; from memory).
+    phase at every point: conservative.
+
+    References
+    ----------
+    FCC OET Bulletin 65, Edition 97-01 (1997) (from memory; docs/references.md § 3).
     """
     if isinstance(reflection, str):
         try:
@@ -92,9 +118,23 @@ def _is_spatial_peak(evaluation: str) -> bool:
     return evaluation == "peak"
 
 
-def model_for(antenna: Antenna, model: str = "auto") -> str:
-    """The model that :func:`power_density` uses for *antenna* when asked for *model*.
+def model_for(antenna: Antenna | Prepared, model: str = "auto") -> str:
+    r"""The model that :func:`power_density` uses for *antenna* when asked for *model*.
 
+    Parameters
+    ----------
+    antenna : Antenna or Prepared
+        The emitter.
+    model : {"auto", "spherical", "cylindrical", "synthetic", "aperture", "endfire"}
+        The model asked for.
+
+    Returns
+    -------
+    str
+        The model that runs: *model* itself, or what ``auto`` resolves to.
+
+    Notes
+    -----
     ``auto`` gives ``synthetic`` for panels, omnis and arrays with a ``length_m``
     (capped by the spherical value at peak gain), ``aperture`` for dishes with a
     ``diameter_m``, and ``spherical`` otherwise.
@@ -106,6 +146,12 @@ def model_for(antenna: Antenna, model: str = "auto") -> str:
     InputError
         The model needs a quantity the antenna lacks (``length_m``, ``diameter_m``) or
         does not apply to its kind.
+
+    References
+    ----------
+    FCC OET Bulletin 65, Edition 97-01 (1997) (from memory; docs/references.md § 3).
+    IEC 62232 practice for the synthetic model (from memory; docs/references.md § 7); the choice
+    checked against the full-wave references (docs/references.md § 9).
     """
     if model not in MODELS:
         raise UnknownKeyError(f"unknown model {model!r}; choose one of: {', '.join(MODELS)}")
@@ -135,7 +181,7 @@ def model_for(antenna: Antenna, model: str = "auto") -> str:
     return model
 
 
-def _kernel(antenna: Antenna, model: str, auto: bool, pattern: Pattern, spatial_peak: bool = True):
+def _kernel(antenna: Antenna | Prepared, model: str, auto: bool, pattern: Pattern, spatial_peak: bool = True) -> Kernel:
     """A function of antenna-frame coordinates (f, r, u) giving W/m² without reflection."""
     r_min = minimum_distance_m(antenna)
     eirp = antenna.eirp_w
@@ -145,25 +191,27 @@ def _kernel(antenna: Antenna, model: str, auto: bool, pattern: Pattern, spatial_
         # an array's single-beam width (not the scan range): all power in one beam, conservative
         h_bw = None if antenna.kind == "omni" else pattern.h_beamwidth_deg
         return lambda f, r, u: cylindrical.cylindrical_kernel(
-            pattern, antenna.net_power_w, antenna.gain_linear, antenna.length_m, h_bw, f, r, u, r_min
+            pattern, antenna.net_power_w, antenna.gain_linear, _given(antenna.length_m), h_bw, f, r, u, r_min
         )
     if model == "synthetic":
         lam = antenna.wavelength_m
         peak = auto and spatial_peak
         length = (
-            synthetic.effective_length_m(antenna.length_m, lam, pattern.v_beamwidth_deg) if auto else antenna.length_m
+            fresnel.effective_length_m(_given(antenna.length_m), lam, pattern.v_beamwidth_deg)
+            if auto
+            else _given(antenna.length_m)
         )
         return lambda f, r, u: synthetic.synthetic_kernel(
             pattern, eirp, length, lam, f, r, u, r_min, cap_spherical=auto, spatial_peak=peak
         )
     if model == "endfire":
-        return lambda f, r, u: farfield.endfire_kernel(pattern, eirp, antenna.length_m, f, r, u, r_min)
+        return lambda f, r, u: farfield.endfire_kernel(pattern, eirp, _given(antenna.length_m), f, r, u, r_min)
     if model == "aperture":
         return lambda f, r, u: aperture.aperture_kernel(
             pattern,
             antenna.net_power_w,
             antenna.gain_linear,
-            antenna.diameter_m,
+            _given(antenna.diameter_m),
             antenna.wavelength_m,
             antenna.aperture_efficiency,
             f,
@@ -182,7 +230,7 @@ def power_density(
     reflection: str | float = "none",
     evaluation: str = "peak",
 ) -> np.ndarray:
-    """Time-averaged power density of *antenna* at each point.
+    r"""Time-averaged power density of *antenna* at each point.
 
     Parameters
     ----------
@@ -196,7 +244,7 @@ def power_density(
         Ground-reflection factor on power density (:func:`reflection_factor`).
     evaluation : {"peak", "spatial-average"}
         What the value stands for: ``peak`` (a spatial peak; ``auto`` adds the coherent
-        margin of :func:`exposure.models.synthetic.coherent_margin` to its near-field term) or
+        margin of :func:`exposure.models.fresnel.coherent_margin` to its near-field term) or
         ``spatial-average`` (to be averaged over a body's height: the power sum alone).
 
     Returns
@@ -209,6 +257,12 @@ def power_density(
     -----
     Evaluated in chunks of :data:`CHUNK_POINTS` points with no Python loop over points;
     memory stays bounded whatever the number of points or of sub-sources.
+
+    References
+    ----------
+    FCC OET Bulletin 65, Edition 97-01 (1997) (from memory; docs/references.md § 3).
+    IEC 62232 / ITU-T K.61 practice (from memory; docs/references.md § 7); the full-wave check,
+    docs/references.md § 9.
     """
     resolved = model_for(antenna, model)
     factor = reflection_factor(reflection)
@@ -241,12 +295,24 @@ def power_density(
     return out.reshape(shape)
 
 
-def beam_direction(antenna: Antenna) -> np.ndarray:
-    """Unit vector of the main beam in the site frame.
+def beam_direction(antenna: Antenna | Prepared) -> np.ndarray:
+    r"""Unit vector of the main beam in the site frame.
 
-    The pattern's peak direction (electrical tilt included) in the antenna's frame
-    (mechanical tilt, azimuth, a dish's elevation). For a beam-steering array, the centre
-    of the scan ranges.
+    Parameters
+    ----------
+    antenna : Antenna or Prepared
+
+    Returns
+    -------
+    ndarray, shape (3,)
+        The pattern's peak direction (electrical tilt included) in the antenna's frame
+        (mechanical tilt, azimuth, a dish's elevation); for a beam-steering array, the centre
+        of the scan ranges.
+
+    References
+    ----------
+    The frames of :mod:`exposure.models.frames`; the patterns' peaks of :mod:`exposure.patterns`
+    (docs/references.md § 8).
     """
     prepared = prepare(antenna)
     local = direction_from_angles(prepared.pattern.peak_azimuth_deg, prepared.pattern.peak_elevation_deg)
@@ -254,9 +320,31 @@ def beam_direction(antenna: Antenna) -> np.ndarray:
 
 
 def power_density_along_beam(
-    antenna: Antenna, distances_m, *, model: str = "auto", reflection: str | float = "none", evaluation: str = "peak"
+    antenna: Antenna | Prepared,
+    distances_m,
+    *,
+    model: str = "auto",
+    reflection: str | float = "none",
+    evaluation: str = "peak",
 ):
-    """Power density at distances along the main beam from the centre of radiation [W/m²]."""
+    r"""Power density at distances along the main beam from the centre of radiation [W/m²].
+
+    Parameters
+    ----------
+    antenna : Antenna or Prepared
+    distances_m : array_like
+        Distances along :func:`beam_direction` [m].
+    model, reflection, evaluation
+        As for :func:`power_density`.
+
+    Returns
+    -------
+    ndarray, shape of *distances_m*
+
+    References
+    ----------
+    As :func:`power_density`.
+    """
     antenna = prepare(antenna)
     d = np.asarray(distances_m, dtype=float)
     points = np.asarray(antenna.position_m, dtype=float) + d[..., None] * beam_direction(antenna)

@@ -28,6 +28,23 @@ MAX_MINIMUM_DISTANCE_M = 0.1
 def minimum_distance_m(wavelength_m: float) -> float:
     r"""Distance below which the models hold their value at this distance [m].
 
+    Parameters
+    ----------
+    wavelength_m : float
+        Wavelength [m].
+
+    Returns
+    -------
+    float
+        :math:`r_{min}` [m].
+
+    Examples
+    --------
+    >>> round(minimum_distance_m(299_792_458.0 / 900e6), 4)  # 900 MHz
+    0.053
+
+    Notes
+    -----
     .. math:: r_{min} = \min(\lambda / 2\pi,\ 0.1\ \mathrm{m})
 
     Inside :math:`\lambda/2\pi` (the reactive near field; docs/references.md § 3) none of the
@@ -36,6 +53,11 @@ def minimum_distance_m(wavelength_m: float) -> float:
     which is at least as high as any value it gives farther out (conservative with
     respect to the model). The cap of 0.1 m keeps the clamp small against the body at low
     frequencies (this project's choice).
+
+    References
+    ----------
+    FCC OET Bulletin 65, Edition 97-01 (1997), Section 2 (from memory; docs/references.md § 3).
+    The 0.1 m cap is this project's choice.
     """
     return float(min(wavelength_m / (2.0 * math.pi), MAX_MINIMUM_DISTANCE_M))
 
@@ -57,23 +79,54 @@ def spherical_power_density(eirp_w, distance_m, relative_gain=1.0):
     numeric
         Power density [W/m²], without ground reflection.
 
+    Examples
+    --------
+    OET 65's far-field form, 1000 W EIRP at 10 m:
+
+    >>> round(float(spherical_power_density(1000.0, 10.0)), 4)
+    0.7958
+
     Notes
     -----
     .. math:: S = \frac{P\,G\,g(\theta,\varphi)}{4\pi r^2}
 
-    FCC OET Bulletin 65, Edition 97-01 (1997), far-field equation (from memory; docs/references.md § 3).
     Valid in the far field, :math:`r \gtrsim 2D^2/\lambda`; nearer it overestimates the
     main beam of a large aperture.
+
+    References
+    ----------
+    FCC OET Bulletin 65, Edition 97-01 (1997), Section 2 (from memory; docs/references.md § 3).
     """
     r = np.asarray(distance_m, dtype=float)
     return np.asarray(eirp_w, dtype=float) * np.asarray(relative_gain, dtype=float) / (4.0 * math.pi * r * r)
 
 
 def spherical_kernel(pattern: Pattern, eirp_w: float, forward, right, up, r_min: float) -> np.ndarray:
-    """Spherical model on antenna-frame coordinates (1-d float arrays) [W/m²].
+    r"""Spherical model on antenna-frame coordinates (1-d float arrays) [W/m²].
 
-    Distances are clamped to ``r_min`` (:func:`minimum_distance_m`). Works in as few
-    temporaries as it can: it is the common path of a site evaluation.
+    Parameters
+    ----------
+    pattern : Pattern
+        The antenna's relative pattern.
+    eirp_w : float
+        Net power times peak gain [W].
+    forward, right, up : ndarray
+        Antenna-frame coordinates of the points [m].
+    r_min : float
+        Distance clamp [m] (:func:`minimum_distance_m`).
+
+    Returns
+    -------
+    ndarray
+        :math:`P G g / (4\pi r^2)` without ground reflection [W/m²].
+
+    Notes
+    -----
+    Works in as few temporaries as it can: it is the common path of a site evaluation.
+
+    References
+    ----------
+    FCC OET Bulletin 65, Edition 97-01 (1997), Section 2 (from memory; docs/references.md § 3).
     """
     horizontal2 = forward * forward
     horizontal2 += right * right
@@ -105,6 +158,11 @@ def endfire_kernel(pattern: Pattern, eirp_w: float, length_m: float, forward, ri
     r_min : float
         Clamp of distances [m].
 
+    Returns
+    -------
+    ndarray
+        Power density without ground reflection [W/m²].
+
     Notes
     -----
     .. math:: S = \frac{P\,G\,g(\varphi,\theta)}{4\pi d^2},\qquad
@@ -118,6 +176,12 @@ def endfire_kernel(pattern: Pattern, eirp_w: float, length_m: float, forward, ri
     :math:`r = 7L`. This project's rule, checked against the full-wave Yagi–Uda references
     in ``tests/fullwave`` (where the spherical model from the centre is 4.5 dB low at one
     wavelength in front).
+
+    References
+    ----------
+    FCC OET Bulletin 65, Edition 97-01 (1997), Section 2 (from memory; docs/references.md § 3).
+    The distance from the nearer end: this project's rule, checked against the full-wave
+    references of ``tests/fullwave`` (docs/references.md § 9).
     """
     excess = np.abs(forward) - 0.5 * length_m
     np.maximum(excess, 0.0, out=excess)

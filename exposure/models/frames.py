@@ -59,10 +59,23 @@ __all__ = [
 
 
 def mechanical_downtilt_deg(antenna: Antenna) -> float:
-    """Downtilt of an antenna's frame [deg, positive down].
+    r"""Downtilt of an antenna's frame [deg, positive down].
 
-    ``mech_tilt_deg`` for every kind; a dish's pointing ``elevation_deg`` (positive up)
-    is subtracted, so a dish with ``elevation_deg = 5`` looks 5° above the horizon.
+    Parameters
+    ----------
+    antenna : Antenna
+        ``mech_tilt_deg`` for every kind; a dish's pointing ``elevation_deg`` (positive up)
+        is subtracted, so a dish with ``elevation_deg = 5`` looks 5° above the horizon.
+
+    Returns
+    -------
+    float
+        Downtilt [deg].
+
+    References
+    ----------
+    None published: the site and antenna frames of this project (module docstring; azimuth clockwise
+    from north and downtilt positive down, as datasheets and OET 65 give them).
     """
     tilt = float(antenna.mech_tilt_deg)
     if antenna.kind == "dish":
@@ -84,6 +97,20 @@ def antenna_axes(azimuth_deg: float, downtilt_deg: float) -> np.ndarray:
     -------
     numpy.ndarray, shape (3, 3)
         Rows ``forward``, ``right``, ``up`` (module docstring).
+
+    Examples
+    --------
+    Facing east, untilted: forward is +x, right is south (−y), up is +z.
+
+    >>> antenna_axes(90.0, 0.0).round(12) + 0.0
+    array([[ 1.,  0.,  0.],
+           [ 0., -1.,  0.],
+           [ 0.,  0.,  1.]])
+
+    References
+    ----------
+    None published: the site and antenna frames of this project (module docstring; azimuth clockwise
+    from north and downtilt positive down, as datasheets and OET 65 give them).
     """
     a = np.radians(float(azimuth_deg))
     t = np.radians(float(downtilt_deg))
@@ -98,7 +125,24 @@ def antenna_axes(azimuth_deg: float, downtilt_deg: float) -> np.ndarray:
 
 
 def antenna_frame(antenna: Antenna) -> tuple[np.ndarray, np.ndarray]:
-    """Origin [m] and axes (:func:`antenna_axes`) of an antenna's frame."""
+    r"""Origin and axes of an antenna's frame.
+
+    Parameters
+    ----------
+    antenna : Antenna
+
+    Returns
+    -------
+    origin : ndarray, shape (3,)
+        The centre of radiation [m].
+    axes : ndarray, shape (3, 3)
+        :func:`antenna_axes` of its azimuth and :func:`mechanical_downtilt_deg`.
+
+    References
+    ----------
+    None published: the site and antenna frames of this project (module docstring; azimuth clockwise
+    from north and downtilt positive down, as datasheets and OET 65 give them).
+    """
     origin = np.asarray(antenna.position_m, dtype=float)
     if origin.shape != (3,):
         raise InputError(f"emitter {antenna.id}: position_m must be three numbers (x, y, z) [m]")
@@ -106,7 +150,7 @@ def antenna_frame(antenna: Antenna) -> tuple[np.ndarray, np.ndarray]:
 
 
 def to_antenna_frame(points, origin, axes) -> np.ndarray:
-    """Site-frame points into antenna-frame coordinates (forward, right, up).
+    r"""Site-frame points into antenna-frame coordinates (forward, right, up).
 
     Parameters
     ----------
@@ -121,6 +165,11 @@ def to_antenna_frame(points, origin, axes) -> np.ndarray:
     -------
     numpy.ndarray, shape (..., 3)
         Coordinates along forward, right, up [m].
+
+    References
+    ----------
+    None published: the site and antenna frames of this project (module docstring; azimuth clockwise
+    from north and downtilt positive down, as datasheets and OET 65 give them).
     """
     p = np.asarray(points, dtype=float)
     if p.shape[-1:] != (3,):
@@ -129,13 +178,29 @@ def to_antenna_frame(points, origin, axes) -> np.ndarray:
 
 
 def local_coordinates(antenna: Antenna, points) -> np.ndarray:
-    """Site-frame points in *antenna*'s frame (forward, right, up) [m]."""
+    r"""Site-frame points in *antenna*'s frame (forward, right, up) [m].
+
+    Parameters
+    ----------
+    antenna : Antenna
+    points : array_like, shape (..., 3)
+        Points in the site frame [m].
+
+    Returns
+    -------
+    ndarray, shape (..., 3)
+
+    References
+    ----------
+    None published: the site and antenna frames of this project (module docstring; azimuth clockwise
+    from north and downtilt positive down, as datasheets and OET 65 give them).
+    """
     origin, axes = antenna_frame(antenna)
     return to_antenna_frame(points, origin, axes)
 
 
 def spherical_angles(local) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """Distance and pattern angles of antenna-frame points.
+    r"""Distance and pattern angles of antenna-frame points.
 
     Parameters
     ----------
@@ -151,6 +216,11 @@ def spherical_angles(local) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
         in (−180, 180] [deg]; 0 on the aperture axis.
     elevation_deg : numpy.ndarray
         Elevation below boresight, positive down, in [−90, 90] [deg].
+
+    References
+    ----------
+    None published: the site and antenna frames of this project (module docstring; azimuth clockwise
+    from north and downtilt positive down, as datasheets and OET 65 give them).
     """
     q = np.asarray(local, dtype=float)
     f, r, u = q[..., 0], q[..., 1], q[..., 2]
@@ -163,9 +233,22 @@ def spherical_angles(local) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
 
 
 def direction_from_angles(azimuth_deg, elevation_deg) -> np.ndarray:
-    """Antenna-frame unit vectors of the directions (azimuth off boresight, elevation below).
+    r"""Antenna-frame unit vectors of directions (azimuth off boresight, elevation below).
 
-    The inverse of :func:`spherical_angles` for unit distance; shape ``(..., 3)``.
+    Parameters
+    ----------
+    azimuth_deg, elevation_deg : array_like
+        Azimuth off boresight (positive right) and elevation below boresight [deg].
+
+    Returns
+    -------
+    ndarray, shape (..., 3)
+        The inverse of :func:`spherical_angles` for unit distance.
+
+    References
+    ----------
+    None published: the site and antenna frames of this project (module docstring; azimuth clockwise
+    from north and downtilt positive down, as datasheets and OET 65 give them).
     """
     az = np.radians(np.asarray(azimuth_deg, dtype=float))
     el = np.radians(np.asarray(elevation_deg, dtype=float))
@@ -174,5 +257,22 @@ def direction_from_angles(azimuth_deg, elevation_deg) -> np.ndarray:
 
 
 def to_site_direction(local_direction, axes) -> np.ndarray:
-    """An antenna-frame direction (or displacement) expressed in the site frame."""
+    r"""An antenna-frame direction (or displacement) expressed in the site frame.
+
+    Parameters
+    ----------
+    local_direction : array_like, shape (..., 3)
+        Components along forward, right, up.
+    axes : array_like, shape (3, 3)
+        Rows forward, right, up (:func:`antenna_axes`).
+
+    Returns
+    -------
+    ndarray, shape (..., 3)
+
+    References
+    ----------
+    None published: the site and antenna frames of this project (module docstring; azimuth clockwise
+    from north and downtilt positive down, as datasheets and OET 65 give them).
+    """
     return np.asarray(local_direction, dtype=float) @ np.asarray(axes, dtype=float)

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import math
+from typing import Any
 
 from exposure.antenna import Antenna
 from exposure.errors import InputError
@@ -13,8 +14,22 @@ from exposure.models.frames import (
 from exposure.patterns import pattern_for
 
 
-def minimum_distance_m(antenna: Antenna) -> float:
-    """Distance clamp of every model [m]: min(λ/2π, 0.1 m) (:func:`exposure.models.farfield.minimum_distance_m`)."""
+def minimum_distance_m(antenna: Antenna | Prepared) -> float:
+    r"""Distance clamp of every model for this emitter [m]: :math:`\min(\lambda/2\pi,\ 0.1\ \mathrm{m})`.
+
+    Parameters
+    ----------
+    antenna : Antenna or Prepared
+
+    Returns
+    -------
+    float
+        :func:`exposure.models.farfield.minimum_distance_m` at the emitter's wavelength.
+
+    References
+    ----------
+    FCC OET Bulletin 65, Edition 97-01 (1997) (from memory; docs/references.md § 3).
+    """
     return farfield.minimum_distance_m(antenna.wavelength_m)
 
 
@@ -55,7 +70,7 @@ class Prepared:
         self.pattern = pattern_for(antenna)
         self.origin, self.axes = antenna_frame(antenna)
 
-    def __getattr__(self, name: str):
+    def __getattr__(self, name: str) -> Any:
         return getattr(self.antenna, name)
 
     def __repr__(self) -> str:
@@ -63,5 +78,25 @@ class Prepared:
 
 
 def prepare(antenna: Antenna | Prepared) -> Prepared:
-    """*antenna* prepared for evaluation (itself if it already is)."""
+    r"""*antenna* prepared for evaluation (itself if it already is).
+
+    Parameters
+    ----------
+    antenna : Antenna or Prepared
+
+    Returns
+    -------
+    Prepared
+        The antenna, checked, with its pattern (:func:`exposure.patterns.pattern_for`) and
+        frame (:func:`exposure.models.frames.antenna_frame`) built once.
+
+    Raises
+    ------
+    InputError
+        A quantity the models cannot take (a negative power, a non-finite frequency).
+
+    References
+    ----------
+    None published: a cache of this project's (the patterns it builds cite theirs).
+    """
     return antenna if isinstance(antenna, Prepared) else Prepared(antenna)

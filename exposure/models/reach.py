@@ -25,7 +25,7 @@ from exposure.models.density import (
     power_density_along_beam,
     reflection_factor,
 )
-from exposure.models.prepared import minimum_distance_m, prepare
+from exposure.models.prepared import Prepared, minimum_distance_m, prepare
 
 SCAN_SAMPLES = 400
 """Log-spaced samples of a line's first scan."""
@@ -39,7 +39,7 @@ def last_crossings(
     refine: int,
     tolerance: float,
 ) -> list[float]:
-    """The distance [m] beyond which the prediction on a line stays below each limit.
+    r"""The distance [m] beyond which the prediction on a line stays below each limit.
 
     Parameters
     ----------
@@ -60,6 +60,12 @@ def last_crossings(
     list of float
         Per limit: the far end of the bracket of the outermost sample at or above the limit
         (conservative); 0 where no sample reaches it.
+
+    References
+    ----------
+    None published: a bracketing search of this project's. It is conservative as long as the
+    prediction does not rise again between neighbouring scan samples beyond the outermost
+    one above the limit (400 log-spaced samples).
     """
     values = along(scan_m)
     out = []
@@ -83,7 +89,7 @@ def last_crossings(
 
 
 def boresight_distance_to_limit(
-    antenna: Antenna,
+    antenna: Antenna | Prepared,
     limit_w_m2: float,
     *,
     model: str = "auto",
@@ -115,6 +121,10 @@ def boresight_distance_to_limit(
     sampled at 400 log-spaced distances from :func:`minimum_distance_m` to there and the
     crossing refined 64-fold a pass to 0.1 mm or 0.01 %, whichever is larger
     (:func:`last_crossings`); the returned end is the one on the safe side.
+
+    References
+    ----------
+    FCC OET Bulletin 65, Edition 97-01 (1997) (from memory; docs/references.md § 3). The compliance distance along the main beam.
     """
     limit = float(limit_w_m2)
     if not (math.isfinite(limit) and limit > 0.0):
@@ -144,14 +154,33 @@ def boresight_distance_to_limit(
 def ray_extents(
     antenna: Antenna, direction: np.ndarray, limits_w_m2: Sequence[float], reflection: float
 ) -> list[float]:
-    """Largest distance [m] along *direction* from the centre of radiation at which the
-    emitter alone reaches each of *limits_w_m2*; 0 where it never does. One scan serves
-    every limit.
+    r"""Largest distance along *direction* at which the emitter alone reaches each limit [m].
 
+    Parameters
+    ----------
+    antenna : Antenna or Prepared
+    direction : ndarray, shape (3,)
+        Unit vector in the site frame.
+    limits_w_m2 : sequence of float
+        Power-density limits [W/m²]; one scan serves them all.
+    reflection : float
+        Power reflection factor (:func:`exposure.models.reflection_factor`).
+
+    Returns
+    -------
+    list of float
+        Per limit, the distance from the centre of radiation [m]; 0 where it is never reached.
+
+    Notes
+    -----
     Scans 400 log-spaced distances from 1 mm out to 1.5 times where a spherical bound with
     the peak gain falls below the lowest limit (a dish: at least its far-field distance
     0.6·D²/λ), then refines each limit's outermost crossing 32-fold a pass to 1 mm or 0.1 %
     (:func:`last_crossings`; reported on the far side: conservative).
+
+    References
+    ----------
+    FCC OET Bulletin 65, Edition 97-01 (1997) (from memory; docs/references.md § 3). The spherical bound of the far-field form.
     """
     lowest = min(limits_w_m2)
     bound = math.sqrt(reflection * antenna.eirp_w / (4 * math.pi * lowest))

@@ -1,10 +1,10 @@
-r"""Synthetic (multi-source) model of a linear array: sub-sources along the aperture.
+"""Synthetic (multi-source) model of a linear array: sub-sources along the aperture.
 
 The aperture of length :math:`L` is split into :math:`N` equal segments; a point source
 at the middle of each radiates :math:`P/N` with the antenna's full pattern (electrical
 tilt included), all oriented as the antenna, and their power densities add:
 
-.. math:: S = \sum_{i=1}^{N} \frac{P\,G}{4\pi N}\,\frac{g(\varphi,\theta_i)}{r_i^2}
+.. math:: S = \\sum_{i=1}^{N} \frac{P\\,G}{4\\pi N}\\,\frac{g(\varphi,\theta_i)}{r_i^2}
 
 The sub-sources lie on the aperture axis (the antenna frame's ``up`` axis, tilted with
 the mechanical tilt; :mod:`exposure.models.frames`), so every sub-source sees a point at the
@@ -12,7 +12,7 @@ same azimuth :math:`\varphi`: the pattern's azimuth part is computed once per po
 only the vertical part per sub-source.
 
 In front of the aperture, where it is long against the vertical beam seen from the
-point, the sum tends to :math:`PG\int g\,d\theta/(4\pi L R)`: the 1/R law of the
+point, the sum tends to :math:`PG\\int g\\,d\theta/(4\\pi L R)`: the 1/R law of the
 cylindrical model. Far away it tends to one source at the centre, the spherical law.
 Above, below and beside the array each sub-source's own distance and angle count, which
 is what the model is for. IEC 62232 / ITU-T K.61 practice (from memory; docs/references.md § 7).
@@ -32,15 +32,15 @@ Number of sub-sources (discrete sum)
 Seen from a point at distance :math:`d` from the aperture (from the nearer end above or
 below it), neighbouring sub-sources must be close against the vertical beamwidth
 :math:`\theta_3` for the sum to stand for the continuous aperture: at most
-:math:`\beta\,d\,\theta_3` apart, :math:`\beta` = :data:`ANGULAR_SPACING` (a quarter
+:math:`\beta\\,d\\,\theta_3` apart, :math:`\beta` = :data:`ANGULAR_SPACING` (a quarter
 beamwidth). :func:`source_count` sets the most, enough down to one wavelength from the
 aperture and never sparser than λ/2,
 
-.. math:: N_{max} = \left\lceil \max\left(\frac{2L}{\lambda},\ \frac{L}{\beta\,\lambda\,\theta_3}\right)\right\rceil
-          \in [2, 512],
+.. math:: N_{max} = \\left\\lceil \\max\\left(\frac{2L}{\\lambda},\\ \frac{L}{\beta\\,\\lambda\\,\theta_3}\right)\right\rceil
+          \\in [2, 512],
 
-and a point uses the smallest of :math:`N_{max}, \lceil N_{max}/2\rceil, \ldots` that is
-enough for its own distance :math:`d` (:math:`N \ge L/(\beta d \theta_3)`). From one
+and a point uses the smallest of :math:`N_{max}, \\lceil N_{max}/2\rceil, \\ldots` that is
+enough for its own distance :math:`d` (:math:`N \\ge L/(\beta d \theta_3)`). From one
 wavelength out the sum is within 8 % (0.3 dB; 3 % at 99 % of points) of its limit of
 infinitely many sub-sources at the default spacing, and the error falls as the spacing
 squared (tests); the largest errors are in the steep skirts of the vertical pattern.
@@ -51,37 +51,37 @@ Summing powers (not fields) of sub-sources that each already carry the full vert
 pattern smears that pattern by the angle the aperture subtends, more than a real
 aperture does once its far-field pattern has formed. The model therefore blends into the
 spherical model (one source at the centre) between half the far-field distance
-:math:`r_{ff} = 2L^2/\lambda` and :math:`r_{ff}`, linearly in :math:`\log r`
+:math:`r_{ff} = 2L^2/\\lambda` and :math:`r_{ff}`, linearly in :math:`\\log r`
 (:func:`far_field_weight`), and *is* the spherical model from :math:`r_{ff}` on
 (this project's choice; the far-field distance is that of Federal Standard 1037C). It is
-continuous, and it tends to the spherical law beyond :math:`2L^2/\lambda` exactly.
+continuous, and it tends to the spherical law beyond :math:`2L^2/\\lambda` exactly.
 """
 
 from __future__ import annotations
+
+__all__ = [
+    "MAX_SOURCES",
+    "ANGULAR_SPACING",
+    "source_count",
+    "source_heights",
+    "far_field_weight",
+    "synthetic_kernel",
+]
 
 import math
 
 import numpy as np
 
+from exposure.models.fresnel import (
+    _MARGIN_KNOTS_LOG,
+    _MARGIN_NEPERS,
+    far_field_distance_m,
+)
 from exposure.patterns import Pattern
-
-__all__ = [
-    "SPATIAL_PEAK_MARGIN_DB",
-    "UNIFORM_BEAMWIDTH_LAMBDA_RAD",
-    "effective_length_m",
-    "coherent_margin",
-    "coherent_margin_squared",
-    "MAX_SOURCES",
-    "ANGULAR_SPACING",
-    "source_count",
-    "source_heights",
-    "far_field_distance_m",
-    "far_field_weight",
-    "synthetic_kernel",
-]
 
 MAX_SOURCES = 512
 """Upper bound of the sub-source count."""
+
 
 ANGULAR_SPACING = 0.25
 r"""Spacing of neighbouring sub-sources as seen from a point, in vertical beamwidths, β."""
@@ -94,57 +94,54 @@ def _beamwidth_rad(pattern: Pattern) -> float:
 def source_count(
     length_m: float, wavelength_m: float, pattern: Pattern, angular_spacing: float = ANGULAR_SPACING
 ) -> int:
-    r"""Most sub-sources for an aperture (module docstring): :math:`N_{max}` in [2, 512]."""
+    r"""Most sub-sources of the discrete sum for an aperture: :math:`N_{max}` in [2, 512].
+
+    Parameters
+    ----------
+    length_m, wavelength_m : float
+        Aperture length and wavelength [m].
+    pattern : Pattern
+        The antenna's pattern (its vertical beamwidth :math:`\theta_3`).
+    angular_spacing : float
+        :math:`\beta`, the spacing as seen from a point, in vertical beamwidths.
+
+    Returns
+    -------
+    int
+        :math:`N_{max}` (module docstring, "Number of sub-sources").
+
+    References
+    ----------
+    IEC 62232 / ITU-T K.61 practice for the synthetic model (from memory; docs/references.md § 7).
+    """
     angular = length_m / (angular_spacing * wavelength_m * _beamwidth_rad(pattern))
     return int(min(max(math.ceil(max(2.0 * length_m / wavelength_m, angular) - 1e-9), 2), MAX_SOURCES))
 
 
 def source_heights(length_m: float, count: int) -> np.ndarray:
-    """Positions of ``count`` sub-sources along the aperture axis, centred on 0 [m]."""
+    r"""Positions of ``count`` sub-sources along the aperture axis, centred on 0 [m].
+
+    Parameters
+    ----------
+    length_m : float
+        Aperture length [m].
+    count : int
+        Number of equal segments; each source sits at a segment's middle.
+
+    Returns
+    -------
+    ndarray, shape (count,)
+        Heights along the aperture axis [m].
+
+    References
+    ----------
+    IEC 62232 / ITU-T K.61 practice for the synthetic model (from memory; docs/references.md § 7).
+    """
     return (np.arange(count) + 0.5) * (length_m / count) - 0.5 * length_m
 
 
-def far_field_distance_m(length_m: float, wavelength_m: float) -> float:
-    r"""Far-field distance of the aperture, :math:`2L^2/\lambda` [m] (Federal Standard 1037C)."""
-    return 2.0 * length_m**2 / wavelength_m
-
-
 def far_field_weight(distance_m, length_m: float, wavelength_m: float) -> np.ndarray:
-    r"""Weight of the synthetic sum against the spherical model: 1 inside :math:`r_{ff}/2`,
-    0 from :math:`r_{ff}` on, linear in :math:`\log r` between."""
-    r_ff = far_field_distance_m(length_m, wavelength_m)
-    with np.errstate(divide="ignore"):
-        w = np.log2(r_ff / np.asarray(distance_m, dtype=float))
-    return np.clip(w, 0.0, 1.0)
-
-
-SPATIAL_PEAK_MARGIN_DB = ((0.08, 1.5), (0.13, 3.0), (0.3, 3.0), (1.0, 0.0))
-"""Knots (r/r_ff, dB) of :func:`coherent_margin`, joined linearly in log(r/r_ff)."""
-
-UNIFORM_BEAMWIDTH_LAMBDA_RAD = 0.886
-"""Half-power beamwidth of a uniform line source, 0.886 λ/L [rad] (textbook array theory)."""
-
-
-def effective_length_m(length_m: float, wavelength_m: float, v_beamwidth_deg: float) -> float:
-    r"""The uniform aperture that forms the given vertical beam, never longer than the antenna [m].
-
-    .. math:: L_{eff} = \min\left(L,\ \frac{0.886\,\lambda}{\theta_3}\right)
-
-    A uniform line source of length :math:`L` has a half-power beamwidth of
-    :math:`0.886\,\lambda/L` rad (textbook array theory, e.g. Balanis, *Antenna Theory*,
-    3rd ed., 2005, § 4.6; from memory). A tapered aperture forms a broader beam from the
-    same length because its power is concentrated in the middle; spreading the power over
-    :math:`L_{eff}` instead of :math:`L` puts that concentration into the near field
-    (against the full-wave tapered panel, nec2++, the power sum over :math:`L` is 2.4 dB low
-    on the beam at 0.02–0.1 :math:`r_{ff}`; over :math:`L_{eff}` 0.9 dB).
-    """
-    lam = float(wavelength_m)
-    width = math.radians(float(v_beamwidth_deg))
-    return float(min(length_m, UNIFORM_BEAMWIDTH_LAMBDA_RAD * lam / width)) if width > 0 else float(length_m)
-
-
-def coherent_margin(distance_m, length_m: float, wavelength_m: float) -> np.ndarray:
-    r"""Spatial-peak margin on the power-sum near-field term [linear, 1..2].
+    r"""Weight of the synthetic sum against the spherical model.
 
     Parameters
     ----------
@@ -155,48 +152,18 @@ def coherent_margin(distance_m, length_m: float, wavelength_m: float) -> np.ndar
 
     Returns
     -------
-    numpy.ndarray
-        :math:`M(\rho)`, :math:`\rho = r/r_{ff}`, :math:`r_{ff} = 2L^2/\lambda`, in dB
-        piecewise linear in :math:`\log\rho` through :data:`SPATIAL_PEAK_MARGIN_DB`:
-        +1.5 dB up to :math:`0.08\,r_{ff}`, rising to +3.0 dB at :math:`0.13\,r_{ff}`,
-        +3.0 dB to :math:`0.3\,r_{ff}`, falling to 0 at :math:`r_{ff}` and beyond.
+    ndarray
+        1 inside :math:`r_{ff}/2`, 0 from :math:`r_{ff}` on, linear in :math:`\log r` between
+        (module docstring, "Far field").
 
-    Notes
-    -----
-    The synthetic sum adds the sub-sources' *powers*; a real aperture adds their *fields*,
-    and in its Fresnel zone the fields focus. For a uniform line source on axis the coherent
-    power density exceeds the power sum by +0.8 dB at :math:`0.1\,r_{ff}`, +2.5 to +2.6 dB
-    at 0.15–0.2 :math:`r_{ff}`, +1.9 dB at 0.3, +0.9 dB at 0.5 and +0.25 dB at
-    :math:`r_{ff}` (line-source theory, docs/references.md § 9). The cylindrical-wave literature
-    gives the spatial peak as about twice the spatial average (Cicchetti & Faraone, IEEE
-    Trans. EMC 46(2), 2004; the factor from memory), and OET 65's cylindrical form behaves
-    as the average. The margin takes that factor of 2 (+3.0 dB) over the focusing zone and
-    less where the theory and the full-wave references need less: the largest shortfall of
-    the power sum (over :math:`L_{eff}`, :func:`effective_length_m`) at any comparison point,
-    for the reference panels and collinears (nec2++), is 1.6 dB below :math:`0.1\,r_{ff}`,
-    2.6 dB at 0.13–0.3, 1.8 dB at 0.3–0.4, 1.2 dB at 0.4–0.6 and 0.7 dB beyond. A larger
-    margin close to the aperture would overstate the main-beam compliance distance there
-    by more than 1.6 times (in the 1/r zone distance scales as power). This margin belongs
-    to a **spatial-peak** evaluation; averaged over a body's height the focusing averages
-    out and the power sum is what IEC 62232 practice uses (from memory).
+    References
+    ----------
+    This project's blend; :math:`r_{ff}` of Federal Standard 1037C (docs/references.md § 3).
     """
-    r2 = np.square(np.asarray(distance_m, dtype=float))
-    return coherent_margin_squared(r2, length_m, wavelength_m)
-
-
-_MARGIN_KNOTS_LOG = np.log([k for k, _ in SPATIAL_PEAK_MARGIN_DB])
-_MARGIN_NEPERS = np.array([v for _, v in SPATIAL_PEAK_MARGIN_DB]) * (math.log(10.0) / 10.0)
-
-
-def coherent_margin_squared(distance2_m2: np.ndarray, length_m: float, wavelength_m: float) -> np.ndarray:
-    """:func:`coherent_margin` from squared distances [m²] (the kernels' common path; overwrites nothing)."""
     r_ff = far_field_distance_m(length_m, wavelength_m)
     with np.errstate(divide="ignore"):
-        log_rho = np.log(distance2_m2)
-    log_rho *= 0.5
-    log_rho -= math.log(r_ff)
-    margin = np.interp(log_rho, _MARGIN_KNOTS_LOG, _MARGIN_NEPERS)
-    return np.exp(margin, out=margin)
+        w = np.log2(r_ff / np.asarray(distance_m, dtype=float))
+    return np.clip(w, 0.0, 1.0)
 
 
 def synthetic_kernel(
@@ -246,6 +213,11 @@ def synthetic_kernel(
     angular_spacing : float
         β of the discrete sum (:data:`ANGULAR_SPACING`; smaller for convergence tests).
 
+    Returns
+    -------
+    ndarray
+        Power density without ground reflection [W/m²].
+
     Notes
     -----
     The continuous limit: with :math:`h` the distance from the aperture axis and
@@ -264,6 +236,11 @@ def synthetic_kernel(
     Memory does not grow with the sub-source count: the discrete sum accumulates one
     sub-source at a time. Points at or beyond the far-field distance cost one source
     (the spherical model).
+
+    References
+    ----------
+    IEC 62232 / ITU-T K.61 practice for the synthetic model (from memory; docs/references.md § 7).
+    The spatial-peak margin: docs/references.md § 9.
     """
     if method not in ("auto", "discrete", "continuous"):
         raise ValueError(f"unknown method {method!r}")

@@ -173,6 +173,20 @@ ZENITH_FADE_FROM_DEG = 45.0
 def zenith_fade(forward, right, up, half_length: float = 0.0) -> np.ndarray:
     r"""Weight of the horizontal attenuation towards the zenith and nadir.
 
+    Parameters
+    ----------
+    forward, right, up : array_like
+        Antenna-frame coordinates [m].
+    half_length : float
+        Half the aperture length [m].
+
+    Returns
+    -------
+    ndarray
+        :math:`w` in [0, 1].
+
+    Notes
+    -----
     With :math:`\epsilon` the elevation of a point seen from the nearest point of the
     aperture axis (half length ``half_length`` [m]),
 
@@ -181,6 +195,11 @@ def zenith_fade(forward, right, up, half_length: float = 0.0) -> np.ndarray:
 
     exactly 1 within 45° of the horizontal (the 3GPP form is untouched there), falling
     smoothly to 0 straight above or below the antenna; 1 on the axis inside the aperture.
+
+    References
+    ----------
+    None published: this project's continuation of the 3GPP horizontal cut (docs/references.md § 8),
+    which is defined on the horizon and would otherwise apply unchanged straight overhead.
     """
     h2 = np.square(forward)
     h2 += np.square(right)

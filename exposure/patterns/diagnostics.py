@@ -23,6 +23,15 @@ from exposure.units import BEAMWIDTH_DIRECTIVITY_DEG2
 def sphere_integral(pattern: Pattern) -> float:
     r"""Integral of a relative pattern over the sphere, :math:`\oint g\,d\Omega` [sr].
 
+    Parameters
+    ----------
+    pattern : Pattern
+
+    Returns
+    -------
+    float
+        [sr]; :math:`4\pi` for an isotropic pattern.
+
     Notes
     -----
     Midpoint rule on an (azimuth, elevation) grid in the antenna frame with weight
@@ -30,6 +39,11 @@ def sphere_integral(pattern: Pattern) -> float:
     elevation at most). Dishes (axially symmetric) are integrated in the off-axis angle,
     :math:`2\pi\int_0^\pi g(\psi)\sin\psi\,d\psi`, with at least 40 steps per beamwidth.
     An isotropic pattern gives :math:`4\pi`.
+
+    References
+    ----------
+    Directivity as :math:`4\pi/\oint g\,d\Omega` (Balanis, *Antenna Theory*, 3rd ed., 2005, § 2.6;
+    from memory).
     """
     if isinstance(pattern, DishPattern):
         n = int(min(max(180.0 / (pattern.v_beamwidth_deg / 40.0), 20_000), 2_000_000))
@@ -56,14 +70,29 @@ NOMINAL_SIDELOBE_FLOOR_DB = 20.0
 
 
 def nominal_pattern(antenna: Antenna) -> Pattern:
-    """The pattern the energy diagnostics integrate: the published forms, not the envelopes.
+    r"""The pattern the energy diagnostics integrate: the published forms, not the envelopes.
 
+    Parameters
+    ----------
+    antenna : Antenna
+
+    Returns
+    -------
+    Pattern
+
+    Notes
+    -----
     :func:`pattern_for` gives the models an *envelope* (the tangent skirt, a side-lobe floor
     at the highest side lobe everywhere), which is meant to lie above the real pattern and
     so radiates more than the antenna does. For the energy balance of
     :func:`pattern_efficiency` the 3GPP forms are used as published: the parabola beyond the
     half-power angles and a side-lobe floor no higher than 3GPP TR 36.814's 20 dB. Tabulated
     cuts and dishes are their own nominal patterns.
+
+    References
+    ----------
+    3GPP TR 38.901, Table 7.3-1 (confirmed), and TR 36.814 (the macro sector; from memory)
+    (docs/references.md § 8); the tangent skirt and side-lobe floor: docs/references.md § 9.
     """
     pattern = pattern_for(antenna)
     if isinstance(pattern, SectorPattern):
@@ -86,19 +115,48 @@ def nominal_pattern(antenna: Antenna) -> Pattern:
 
 
 def directivity_dbi(antenna: Antenna) -> float:
-    r"""Directivity of *antenna*'s nominal pattern (:func:`nominal_pattern`),
-    :math:`10\log(4\pi/\oint g\,d\Omega)` [dBi]."""
+    r"""Directivity of *antenna*'s nominal pattern, :math:`10\log(4\pi/\oint g\,d\Omega)` [dBi].
+
+    Parameters
+    ----------
+    antenna : Antenna
+
+    Returns
+    -------
+    float
+        [dBi] (:func:`nominal_pattern`, :func:`sphere_integral`).
+
+    References
+    ----------
+    Balanis, *Antenna Theory*, 3rd ed., 2005, § 2.6 (from memory).
+    """
     return float(10.0 * math.log10(4.0 * math.pi / sphere_integral(nominal_pattern(antenna))))
 
 
 def pattern_efficiency(antenna: Antenna, pattern: Pattern | None = None) -> float:
     r"""Power the pattern radiates over the power fed, :math:`\oint G\,d\Omega / 4\pi`.
 
+    Parameters
+    ----------
+    antenna : Antenna
+    pattern : Pattern, optional
+        Default :func:`nominal_pattern`.
+
+    Returns
+    -------
+    float
+
+    Notes
+    -----
     :math:`G` is the absolute gain, ``antenna.gain_linear`` times the nominal relative
     pattern (:func:`nominal_pattern`, :func:`sphere_integral`). A consistent datasheet
     gives at most 1 (antenna losses make it less); much above 1, the gain and the pattern
     cannot both be true. Give *pattern* to integrate another (the envelope of
     :func:`pattern_for`, say, to check a model's energy balance).
+
+    References
+    ----------
+    Balanis, *Antenna Theory*, 3rd ed., 2005, § 2.6 (gain, directivity and efficiency; from memory).
     """
     pattern = nominal_pattern(antenna) if pattern is None else pattern
     return float(antenna.gain_linear * sphere_integral(pattern) / (4.0 * math.pi))
@@ -116,6 +174,10 @@ _RULE_MARGIN_DB = 1.5  # gain over the 41253 rule by more than this
 def check_gain_beamwidths(antenna: Antenna) -> str | None:
     r"""Say when an antenna's gain and beamwidths cannot both be true.
 
+    Parameters
+    ----------
+    antenna : Antenna
+
     Returns
     -------
     str or None
@@ -130,6 +192,10 @@ def check_gain_beamwidths(antenna: Antenna) -> str | None:
     than is fed) or below 0.25 (the beams are much narrower than the gain implies).
     Dishes: the gain is compared with OET 65's :math:`\eta(\pi D/\lambda)^2` and flagged
     more than 1.5 dB away. Thresholds are this project's choice.
+
+    References
+    ----------
+    D ≈ 41253/(θh·θv): common practice; the dish gain of OET 65 (docs/references.md § 3).
     """
     messages: list[str] = []
     where = f"emitter {antenna.id}"

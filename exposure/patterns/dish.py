@@ -50,6 +50,11 @@ def f699_gain_dbi(off_axis_deg, diameter_over_wavelength: float, max_gain_dbi: f
     of § 2.3 is not implemented: the 1–70 GHz forms are used at every frequency.
     Where :math:`G_{max} < G_1` (a gain too low for the diameter) the side-lobe levels
     are capped at :math:`G_{max}`.
+
+    References
+    ----------
+    ITU-R Recommendation F.699-7, reference radiation pattern for line-of-sight fixed-link antennas
+    (docs/references.md § 8).
     """
     psi = np.abs(np.asarray(off_axis_deg, dtype=float))
     dl = float(diameter_over_wavelength)
@@ -76,7 +81,27 @@ def f699_gain_dbi(off_axis_deg, diameter_over_wavelength: float, max_gain_dbi: f
 
 
 def f699_gain(off_axis_deg, diameter_over_wavelength: float, max_gain_dbi: float) -> np.ndarray:
-    """ITU-R F.699 pattern relative to its peak [linear, ≤ 1] (:func:`f699_gain_dbi`)."""
+    r"""ITU-R F.699 pattern relative to its peak [linear, ≤ 1] (:func:`f699_gain_dbi`).
+
+    Parameters
+    ----------
+    off_axis_deg : array_like
+        Angle off the beam axis [deg].
+    diameter_over_wavelength : float
+        :math:`D/\lambda`.
+    max_gain_dbi : float
+        Main-beam gain [dBi].
+
+    Returns
+    -------
+    ndarray
+        :math:`10^{(G(\varphi) - G_{max})/10}`.
+
+    References
+    ----------
+    ITU-R Recommendation F.699-7, reference radiation pattern for line-of-sight fixed-link antennas
+    (docs/references.md § 8).
+    """
     return db_to_linear(f699_gain_dbi(off_axis_deg, diameter_over_wavelength, max_gain_dbi) - float(max_gain_dbi))
 
 

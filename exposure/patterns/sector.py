@@ -148,7 +148,7 @@ class SectorPattern(Pattern):
         if h_floor_db is not None and not (np.isfinite(h_floor_db) and h_floor_db >= 0.0):
             raise InputError(f"h_floor_db {h_floor_db!r} must be a finite number >= 0")
         self.h_floor_db = None if h_floor_db is None else float(h_floor_db)
-        self._h_cap = self._cap if h_floor_db is None else min(self._cap, self.h_floor_db * NEPER_PER_DB)
+        self._h_cap = self._cap if h_floor_db is None else min(self._cap, float(h_floor_db) * NEPER_PER_DB)
         self._sla = self.sidelobe_floor_db * NEPER_PER_DB
         self._tilt = math.radians(self.elec_tilt_deg)
         self._h_half = math.radians(self.h_scan_deg) / 2.0

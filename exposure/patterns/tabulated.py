@@ -36,13 +36,28 @@ _PEAK_TOLERANCE_DB = 0.5  # each cut is relative to the peak: its smallest value
 
 
 def validate_cuts(cuts: PatternCuts) -> list[str]:
-    """Problems with tabulated cuts (empty when they are usable).
+    r"""Problems with tabulated cuts (empty when they are usable).
 
+    Parameters
+    ----------
+    cuts : PatternCuts
+
+    Returns
+    -------
+    list of str
+        One line per problem.
+
+    Notes
+    -----
     Rules: each plane has at least 3 finite angles within ±360° and finite attenuations
     ≥ 0 dB, relative to the antenna's peak (the smallest value of each plane within
     0.5 dB of 0); no angle twice in a plane (after wrapping into (−180, 180]); the
     horizontal cut goes all round (no gap over 30°); the vertical cut covers −90..90°
     (zenith to nadir in front) at least.
+
+    References
+    ----------
+    Principal-plane cuts as datasheets give them (common practice; docs/references.md § 8).
     """
     problems: list[str] = []
     for plane, angles, values in (

@@ -17,6 +17,7 @@ from __future__ import annotations
 
 import io
 import math
+from typing import Any
 
 import numpy as np
 
@@ -61,7 +62,7 @@ HEAD_LINE = "#ff9e4a"  # the top of the evaluated body height in the sections
 CASING = {"colors": "white", "linewidths": 3.0, "linestyles": "solid"}
 
 
-ACCESS_STYLE = {  # outline and shading of surfaces by access class
+ACCESS_STYLE: dict[str, dict[str, Any]] = {  # outline and shading of surfaces by access class
     "public": {
         "edgecolor": "black",
         "linewidth": 1.8,

@@ -86,6 +86,7 @@ def emitter_labels(assessment, labels: Labels, base: float, region=None) -> list
         if not _in_region(x, y, region):
             continue
         width, height = labels.size(e.id, 6.5)
+        options: list[tuple[tuple[float, float], str, str, tuple[float, float] | None]]
         if e.azimuth_deg is None:
             options = [
                 ((x + dx, y + dy), ha, va, None)
@@ -140,7 +141,7 @@ def work_labels(assessment, labels: Labels, base: float, region=None) -> list[tu
 
 def _clip_to_box(outline, region) -> list[tuple[float, float]]:
     """The part of a polygon inside a rectangle (Sutherland–Hodgman); [] if none."""
-    points = [tuple(map(float, p)) for p in outline]
+    points: list[tuple[float, float]] = [(float(p[0]), float(p[1])) for p in outline]
     (xa, xb), (ya, yb) = region
     edges = (
         (lambda p: p[0] >= xa, lambda p, q: (xa, p[1] + (q[1] - p[1]) * (xa - p[0]) / (q[0] - p[0]))),
@@ -149,7 +150,7 @@ def _clip_to_box(outline, region) -> list[tuple[float, float]]:
         (lambda p: p[1] <= yb, lambda p, q: (p[0] + (q[0] - p[0]) * (yb - p[1]) / (q[1] - p[1]), yb)),
     )
     for inside, cut in edges:
-        result = []
+        result: list[tuple[float, float]] = []
         for i, q in enumerate(points):
             p = points[i - 1]
             if inside(q):
@@ -198,7 +199,7 @@ def surface_labels(assessment, labels: Labels, region=None) -> list[tuple]:
                 (poly[:, 0].max() + gap + width / 2, cy),
                 (poly[:, 0].min() - gap - width / 2, cy),
             ):
-                box = _box_at(*at, width, height, "center", "center")
+                box = _box_at(float(at[0]), float(at[1]), width, height, "center", "center")
                 if labels.free(box):
                     break
         labels.take(box)

@@ -4,6 +4,8 @@ and tables, the page size of the standard's country, and numbered pages with a f
 
 from __future__ import annotations
 
+from collections.abc import Collection
+
 from exposure.report import fonts, text
 
 FONT = fonts.FONT
@@ -109,7 +111,7 @@ class Builder:
         rows: list[list[str]],
         widths: list[float],
         *,
-        right: set[int] = frozenset(),
+        right: Collection[int] = frozenset(),
         group_rows: tuple[int, ...] = (),
         zebra: bool = True,
     ):

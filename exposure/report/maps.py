@@ -6,6 +6,11 @@ The shared scale and styles are :mod:`exposure.report.figure`.
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING, Any
+
+if TYPE_CHECKING:
+    from matplotlib.artist import Artist
+
 import numpy as np
 
 from exposure.report.figure import (
@@ -36,7 +41,8 @@ from exposure.report.labels import Labels, emitter_labels, surface_labels, work_
 def _base_extent(assessment, region=None) -> tuple[tuple[float, float], tuple[float, float]]:
     if region is not None:
         return region
-    xs, ys = [], []
+    xs: list[float] = []
+    ys: list[float] = []
     for s in assessment.surfaces:
         xs.extend(p[0] for p in s.outline)
         ys.extend(p[1] for p in s.outline)
@@ -60,7 +66,7 @@ def _map_size(xlim, ylim, width_in: float, max_height_in: float) -> tuple[float,
 
 def plan_map(
     assessment, *, width_in: float = 7.2, max_height_in: float = 7.9, region=None, legend: bool = True
-) -> tuple[bytes, float, float]:
+) -> tuple[bytes, float, float, Any]:
     """The plan-view map of every surface: exposure, 100 % contours, emitters, work positions.
 
     Parameters
@@ -280,7 +286,7 @@ def _plan_map(assessment, width_in: float, max_height_in: float, region, legend:
     ax.grid(True, color="#c8c8c8", linewidth=0.3, zorder=0)
     if mesh is not None:
         colourbar(fig, mesh, ax)
-    handles = [
+    handles: list[Artist] = [
         Line2D([], [], color="black", linewidth=1.3, label="100 % of the general-public limit"),
         Line2D([], [], color=OCC_COLOUR, linewidth=1.6, label="100 % of the occupational limit"),
         Line2D(

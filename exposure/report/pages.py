@@ -258,7 +258,8 @@ def emitters_table(b: Builder, a) -> None:
             "small",
         )
     )
-    rows, groups = [], []
+    rows: list[list[str]] = []
+    groups: list[int] = []
     for operator in sorted({e.operator for e in a.emitters}):
         groups.append(len(rows))
         rows.append([f"<b>{esc(operator)}</b>"] + [""] * 11)

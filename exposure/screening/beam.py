@@ -15,7 +15,7 @@ from exposure.models import REFLECTION_FACTORS, boresight_distance_to_limit, mod
 from exposure.models.aperture import dish_gain
 from exposure.screening.exemptions import mpe_exemption
 from exposure.units import linear_to_db, wavelength_m
-from exposure.vocabulary import EMITTER_KINDS, MODELS, REFLECTIONS, SECTOR_KINDS, TIERS
+from exposure.vocabulary import EMITTER_KINDS, MODELS, REFLECTIONS, SECTOR_KINDS, TIERS, EmitterKind
 
 SCREEN_ORDER: tuple[str, ...] = ("spherical", "cylindrical", "synthetic", "aperture", "endfire")
 """The models ``exposure screen`` shows side by side, in this order."""
@@ -55,7 +55,7 @@ def _check(
 
 
 def screen_emitter(o: ScreenRequest) -> dict[str, Any]:
-    """Distances along the main beam at which each applicable model falls to each tier's limit.
+    r"""Distances along the main beam at which each applicable model falls to each tier's limit.
 
     Parameters
     ----------
@@ -80,6 +80,10 @@ def screen_emitter(o: ScreenRequest) -> dict[str, Any]:
     ``auto`` is the site assessment's model for the emitter (:func:`exposure.models.model_for`,
     the one rule), or the spherical model where the quantities do not describe the aperture.
     Distances come from :func:`exposure.models.boresight_distance_to_limit`.
+
+    References
+    ----------
+    FCC OET Bulletin 65, Edition 97-01 (1997) (from memory; docs/references.md § 3); 47 CFR § 1.1307(b)(3) (rules of FCC 19-126, 2019; docs/references.md § 2).
     """
 
     if o.frequency_mhz is None:
@@ -218,7 +222,7 @@ def screen_emitter(o: ScreenRequest) -> dict[str, Any]:
     return result
 
 
-def _kind(o: ScreenRequest) -> str:
+def _kind(o: ScreenRequest) -> EmitterKind:
     """The emitter kind: ``--kind``, or inferred as before ``--kind`` existed; a sector kind
     without its horizontal beamwidth is refused rather than taken for an omni."""
     if o.kind is None:

@@ -73,12 +73,20 @@ def _positive(name: str, value: float, unit: str, *, zero: bool = False) -> floa
 
 
 def one_milliwatt_exemption(power_w: float) -> Exemption:
-    """§ 1.1307(b)(3)(i)(A): exempt if the available maximum time-averaged power ≤ 1 mW.
+    r"""§ 1.1307(b)(3)(i)(A): exempt if the available maximum time-averaged power ≤ 1 mW.
 
     Parameters
     ----------
     power_w : float
         Available maximum time-averaged power [W].
+
+    Returns
+    -------
+    Exemption
+
+    References
+    ----------
+    47 CFR § 1.1307(b)(3) (rules of FCC 19-126, 2019; docs/references.md § 2), (i)(A) (confirmed).
     """
     p = _positive("power", power_w, "W", zero=True)
     return Exemption(
@@ -113,6 +121,18 @@ def mpe_erp_threshold_w(frequency_mhz: float, distance_m: float) -> float:
         Separation distance :math:`R` [m], > 0. The table is valid only from
         :math:`\lambda/2\pi` (:func:`mpe_exemption` says so); this function does not check.
 
+    Returns
+    -------
+    float
+        The threshold ERP [W].
+
+    Examples
+    --------
+    Table 1 at 10 m, one frequency in each band:
+
+    >>> [round(mpe_erp_threshold_w(f, 10.0), 4) for f in (1.0, 10.0, 100.0, 900.0, 1900.0)]
+    [192000.0, 3450.0, 383.0, 1152.0, 1920.0]
+
     Notes
     -----
     ========================  =========================
@@ -133,6 +153,10 @@ def mpe_erp_threshold_w(frequency_mhz: float, distance_m: float) -> float:
     ------
     OutOfRangeError
         Frequency outside 0.3–100,000 MHz.
+
+    References
+    ----------
+    47 CFR § 1.1307(b)(3) (rules of FCC 19-126, 2019; docs/references.md § 2), (i)(C), Table 1 (confirmed).
     """
     f = _positive("frequency", frequency_mhz, "MHz")
     r = _positive("distance", distance_m, "m")
@@ -160,6 +184,19 @@ def mpe_exemption(erp_w: float, frequency_mhz: float, distance_m: float) -> Exem
         Not applicable (``threshold`` and ``exempt`` None) where
         :math:`R < \lambda/2\pi` (= 47.7/f m): the rule then sends the applicant to
         (i)(A) or (i)(B).
+
+    Examples
+    --------
+    A 500 W ERP panel at 1900 MHz, 4 m from the nearest person: the threshold is 19.2 R² = 307.2 W.
+
+    >>> mpe_exemption(500.0, 1900.0, 4.0).exempt
+    False
+    >>> mpe_exemption(500.0, 1900.0, 6.0).exempt  # 691.2 W at 6 m
+    True
+
+    References
+    ----------
+    47 CFR § 1.1307(b)(3) (rules of FCC 19-126, 2019; docs/references.md § 2), (i)(C), Table 1 (confirmed).
     """
     erp = _positive("ERP", erp_w, "W", zero=True)
     f = _positive("frequency", frequency_mhz, "MHz")
@@ -197,6 +234,18 @@ def sar_threshold_mw(frequency_mhz: float, distance_m: float) -> float:
     distance_m : float
         Separation distance :math:`d` [m], 0.005–0.40 (0.5–40 cm).
 
+    Returns
+    -------
+    float
+        :math:`P_{th}` [mW].
+
+    Examples
+    --------
+    The check of docs/references.md § 2 (from memory): 1 cm at 450 MHz.
+
+    >>> round(sar_threshold_mw(450.0, 0.01), 2)
+    44.37
+
     Notes
     -----
     With :math:`f` in GHz and :math:`d` in cm,
@@ -212,13 +261,16 @@ def sar_threshold_mw(frequency_mhz: float, distance_m: float) -> float:
         P_{th} = \begin{cases} ERP_{20\,cm}\,(d/20)^x & d \le 20\ \mathrm{cm} \\
                                ERP_{20\,cm} & 20 < d \le 40\ \mathrm{cm} \end{cases}
 
-    docs/references.md § 2, **from memory** (not checked against the CFR text). Check:
-    d = 1 cm, 0.45 GHz → 44.37 mW.
+    **From memory** (not checked against the CFR text).
 
     Raises
     ------
     OutOfRangeError
         Frequency or distance outside the ranges above.
+
+    References
+    ----------
+    47 CFR § 1.1307(b)(3) (rules of FCC 19-126, 2019; docs/references.md § 2), (i)(B) (from memory).
     """
     f_mhz = _positive("frequency", frequency_mhz, "MHz")
     d_m = _positive("distance", distance_m, "m")
@@ -236,7 +288,7 @@ def sar_threshold_mw(frequency_mhz: float, distance_m: float) -> float:
 
 
 def sar_exemption(power_w: float, frequency_mhz: float, distance_m: float) -> Exemption:
-    """§ 1.1307(b)(3)(i)(B): exempt if the power is at most :func:`sar_threshold_mw`.
+    r"""§ 1.1307(b)(3)(i)(B): exempt if the power is at most :func:`sar_threshold_mw`.
 
     Parameters
     ----------
@@ -244,6 +296,14 @@ def sar_exemption(power_w: float, frequency_mhz: float, distance_m: float) -> Ex
         The larger of the available maximum time-averaged power and the ERP [W].
     frequency_mhz, distance_m : float
         As for :func:`sar_threshold_mw`.
+
+    Returns
+    -------
+    Exemption
+
+    References
+    ----------
+    47 CFR § 1.1307(b)(3) (rules of FCC 19-126, 2019; docs/references.md § 2), (i)(B) (from memory).
     """
     p = _positive("power", power_w, "W", zero=True)
     threshold = sar_threshold_mw(frequency_mhz, distance_m)

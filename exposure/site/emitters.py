@@ -5,7 +5,7 @@ their keys (gain, net power, EIRP and ERP at full output and time-averaged).
 from __future__ import annotations
 
 import math
-from typing import Annotated, Literal
+from typing import TYPE_CHECKING, Annotated, Literal
 
 from pydantic import (
     AfterValidator,
@@ -38,10 +38,14 @@ from exposure.units import (
     dbm_to_watts,
     wavelength_m,
 )
+from exposure.vocabulary import EmitterKind
 
 
 class EmitterBase(Strict):
     """Keys common to every emitter kind."""
+
+    if TYPE_CHECKING:  # each kind's model declares its own literal (the discriminator)
+        kind: EmitterKind
 
     id: EmitterId
     operator: Name
@@ -138,7 +142,9 @@ class EmitterBase(Strict):
         """Power delivered to the antenna at full output [W]: power × ports less line loss."""
         if self.eirp_w is not None:
             return self.eirp_w / float(db_to_linear(self.peak_gain_dbi))
-        return self.transmitter_power_w * self.ports * float(db_to_linear(-self.line_loss_db))
+        power = self.transmitter_power_w
+        assert power is not None  # _one_of_each: power_w, power_dbm or eirp_w is given
+        return power * self.ports * float(db_to_linear(-self.line_loss_db))
 
     @property
     def eirp_full_w(self) -> float:

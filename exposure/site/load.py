@@ -110,7 +110,7 @@ def load_site(path: str | Path, *, standard: str | None = None, limits_file: str
             raise
         raise InputError([f"site.limits_file: {line}" for line in exc.lines()], src) from None
 
-    problems = []
+    problems: list[str] = []
     for i, emitter in enumerate(record.emitters):
         try:
             table.at(emitter.frequency_mhz)

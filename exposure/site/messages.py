@@ -33,7 +33,7 @@ def format_validation_errors(exc: ValidationError, data: dict | None = None) -> 
     lines = []
     for err in exc.errors(include_url=False):
         loc = _clean_loc(err["loc"])
-        lines.append(f"{_loc_text(loc) or '(top level)'}: {_reason(err, loc, data or {})}")
+        lines.append(f"{_loc_text(loc) or '(top level)'}: {_reason(dict(err), loc, data or {})}")
     return list(dict.fromkeys(lines))  # unions can repeat a line; keep the first
 
 

@@ -54,9 +54,10 @@ class Antenna:
     kind : {"panel", "omni", "dish", "array", "directional"}
     frequency_mhz : float
         Carrier frequency [MHz].
-    net_power_w : float
+    avg_net_power_w : float
         Time-averaged power delivered to the antenna terminals [W]: transmitter power
-        times ports, less line loss, times duty factor and any power-reduction factor.
+        times ports, less line loss, times duty factor and any power-reduction factor
+        (the full-output figures are the site's :class:`~exposure.site.model.Emitter`'s).
     gain_dbi : float
         Peak gain over isotropic [dBi].
     position_m : tuple of float
@@ -88,7 +89,7 @@ class Antenna:
     id: str
     kind: EmitterKind
     frequency_mhz: float
-    net_power_w: float
+    avg_net_power_w: float
     gain_dbi: float
     position_m: tuple[float, float, float]
     azimuth_deg: float = 0.0
@@ -111,14 +112,14 @@ class Antenna:
         return float(db_to_linear(self.gain_dbi))
 
     @property
-    def eirp_w(self) -> float:
-        """Time-averaged EIRP [W] = net power x peak gain."""
-        return self.net_power_w * self.gain_linear
+    def avg_eirp_w(self) -> float:
+        """Time-averaged EIRP [W] = time-averaged net power x peak gain."""
+        return self.avg_net_power_w * self.gain_linear
 
     @property
-    def erp_w(self) -> float:
+    def avg_erp_w(self) -> float:
         """Time-averaged ERP [W] = EIRP / 1.64 (47 CFR 1.1307(b)(3))."""
-        return self.eirp_w / ERP_TO_EIRP
+        return self.avg_eirp_w / ERP_TO_EIRP
 
     @property
     def wavelength_m(self) -> float:

@@ -25,7 +25,7 @@ def _antenna(**kw) -> Antenna:
         "id": "T",
         "kind": "panel",
         "frequency_mhz": 1960.0,
-        "net_power_w": 10.0,
+        "avg_net_power_w": 10.0,
         "gain_dbi": 15.0,
         "position_m": (1.0, 2.0, 3.0),
     }

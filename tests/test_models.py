@@ -37,7 +37,7 @@ PANEL = Antenna(
     id="A1",
     kind="panel",
     frequency_mhz=1960.0,
-    net_power_w=71.3,
+    avg_net_power_w=71.3,
     gain_dbi=17.5,
     position_m=(0.0, 0.0, 0.0),
     h_beamwidth_deg=65.0,
@@ -49,7 +49,7 @@ OMNI = Antenna(
     id="O1",
     kind="omni",
     frequency_mhz=850.0,
-    net_power_w=50.0,
+    avg_net_power_w=50.0,
     gain_dbi=10.0,
     position_m=(0.0, 0.0, 0.0),
     v_beamwidth_deg=14.0,
@@ -59,7 +59,7 @@ ARRAY = Antenna(
     id="M1",
     kind="array",
     frequency_mhz=3500.0,
-    net_power_w=50.0,
+    avg_net_power_w=50.0,
     gain_dbi=24.0,
     position_m=(0.0, 0.0, 0.0),
     h_beamwidth_deg=12.0,
@@ -74,7 +74,7 @@ DISH = Antenna(
     id="D1",
     kind="dish",
     frequency_mhz=6000.0,
-    net_power_w=100.0,
+    avg_net_power_w=100.0,
     gain_dbi=10 * math.log10(0.55 * (math.pi * 3.0 / (299.792458 / 6000)) ** 2),
     position_m=(0.0, 0.0, 0.0),
     diameter_m=3.0,
@@ -111,7 +111,7 @@ def test_spherical_is_oet65_far_field_with_each_reflection_factor(reflection, fa
     """OET 65 (1997): S = F EIRP / (4 pi R^2), F = 1, 2.56 (field x1.6), 4 (x2)."""
     r = np.array([1.0, 7.5, 40.0, 300.0])
     s = power_density(PANEL, north(r), model="spherical", reflection=reflection)
-    np.testing.assert_allclose(s, factor * PANEL.eirp_w / (4 * math.pi * r**2), rtol=1e-12)
+    np.testing.assert_allclose(s, factor * PANEL.avg_eirp_w / (4 * math.pi * r**2), rtol=1e-12)
     assert REFLECTION_FACTORS[reflection] == factor
     assert power_density(PANEL, north(7.5), model="spherical", reflection=factor) == pytest.approx(s[1])
 
@@ -121,7 +121,7 @@ def test_spherical_formula_and_pattern():
     assert spherical_power_density(1000.0, 10.0, 0.5) == pytest.approx(1000 * 0.5 / (4 * math.pi * 100))
     east = np.array([[10 * math.sin(math.radians(32.5)), 10 * math.cos(math.radians(32.5)), 0.0]])
     s = power_density(PANEL, east, model="spherical")
-    assert db(s[0] / (PANEL.eirp_w / (4 * math.pi * 100))) == pytest.approx(-3.0, abs=1e-5)  # half-power angle
+    assert db(s[0] / (PANEL.avg_eirp_w / (4 * math.pi * 100))) == pytest.approx(-3.0, abs=1e-5)  # half-power angle
 
 
 def test_cylindrical_closed_forms_and_crossover():
@@ -132,8 +132,8 @@ def test_cylindrical_closed_forms_and_crossover():
     r_c = crossover_distance_m(g, 65.0, 1.9)
     assert r_c == pytest.approx(g * 65 * 1.9 / 720)
     # at R_c the two forms are equal: continuity of the model
-    assert cylindrical_power_density(PANEL.net_power_w, r_c, 1.9, 65.0) == pytest.approx(
-        PANEL.eirp_w / (4 * math.pi * r_c**2)
+    assert cylindrical_power_density(PANEL.avg_net_power_w, r_c, 1.9, 65.0) == pytest.approx(
+        PANEL.avg_eirp_w / (4 * math.pi * r_c**2)
     )
 
 
@@ -144,13 +144,13 @@ def test_cylindrical_model_is_oet65_inside_rc_and_far_field_beyond():
     s = power_density(PANEL, north(r), model="cylindrical")
     expected = np.where(
         r < r_c,
-        cylindrical_power_density(PANEL.net_power_w, r, 1.9, 65.0),
-        PANEL.eirp_w / (4 * math.pi * r**2),
+        cylindrical_power_density(PANEL.avg_net_power_w, r, 1.9, 65.0),
+        PANEL.avg_eirp_w / (4 * math.pi * r**2),
     )
     np.testing.assert_allclose(s, expected, rtol=1e-12)
     assert s[3] == pytest.approx(s[4], rel=1e-4)  # continuous across R_c
     omni = power_density(OMNI, north([0.5, 1.0]), model="cylindrical")
-    np.testing.assert_allclose(omni, cylindrical_power_density(OMNI.net_power_w, np.array([0.5, 1.0]), 1.2))
+    np.testing.assert_allclose(omni, cylindrical_power_density(OMNI.avg_net_power_w, np.array([0.5, 1.0]), 1.2))
 
 
 def test_cylindrical_off_the_aperture_height_falls_from_the_nearer_end():
@@ -178,7 +178,7 @@ def test_aperture_on_axis_is_oet65_piecewise():
     r = np.array([1.0, 20.0, 45.0, 60.0, 100.0, 108.2, 200.0, 1000.0])
     s = power_density(DISH, north(r), model="aperture")
     s_nf, r_nf, r_ff = 16 * 0.55 * 100 / (math.pi * 9), 9 / (4 * 0.0499654), 0.6 * 9 / 0.0499654
-    expected = np.where(r <= r_nf, s_nf, np.where(r < r_ff, s_nf * r_nf / r, DISH.eirp_w / (4 * math.pi * r**2)))
+    expected = np.where(r <= r_nf, s_nf, np.where(r < r_ff, s_nf * r_nf / r, DISH.avg_eirp_w / (4 * math.pi * r**2)))
     np.testing.assert_allclose(s, expected, rtol=1e-4)
 
 
@@ -194,7 +194,7 @@ def test_aperture_off_axis_rule():
     assert np.all(beyond > 0)
     # never above the spherical upper bound on the axis in the near field
     r = np.array([1.0, 10.0, 45.0, 100.0])
-    assert np.all(power_density(DISH, north(r), model="aperture") <= DISH.eirp_w / (4 * math.pi * r**2))
+    assert np.all(power_density(DISH, north(r), model="aperture") <= DISH.avg_eirp_w / (4 * math.pi * r**2))
 
 
 def test_aperture_helpers_at_the_reflector():
@@ -211,7 +211,7 @@ def test_aperture_far_field_uses_the_reference_pattern():
     s = power_density(DISH, [[r * math.sin(t), r * math.cos(t), 0.0]], model="aperture")[0]
     d_over_l = 3.0 / 0.0499654
     expected_dbi = 10 - 10 * math.log10(d_over_l)  # F.699 D/lambda <= 100, 48..180 deg
-    assert db(s * 4 * math.pi * r**2 / DISH.net_power_w) == pytest.approx(expected_dbi, abs=1e-6)
+    assert db(s * 4 * math.pi * r**2 / DISH.avg_net_power_w) == pytest.approx(expected_dbi, abs=1e-6)
 
 
 # ---- synthetic model laws ---------------------------------------------------------------
@@ -251,7 +251,7 @@ def test_auto_is_synthetic_capped_at_the_peak_gain_spherical_value():
     pts = np.random.default_rng(0).uniform([-60, -60, -30], [60, 60, 30], size=(100_000, 3))
     syn = power_density(tilted, pts, model="synthetic")
     r2 = np.maximum(np.sum((pts - np.asarray(tilted.position_m)) ** 2, axis=-1), minimum_distance_m(tilted) ** 2)
-    peak = tilted.eirp_w / (4 * math.pi * r2)
+    peak = tilted.avg_eirp_w / (4 * math.pi * r2)
     assert np.mean(syn > peak) < 0.01
     # Since the full-wave issue auto spreads the power over the uniform-equivalent length and
     # adds the coherent (spatial-peak) and induction margins; with those steps, it is the same
@@ -277,7 +277,7 @@ def test_synthetic_falls_as_one_over_r_in_front_of_the_aperture():
     r = np.array([0.3, 0.5, 1.0, 2.0])
     s = power_density(clean, north(r), model="synthetic")
     integral = math.radians(6.8) * math.sqrt(math.pi / (1.2 * math.log(10)))
-    np.testing.assert_allclose(s * r, clean.eirp_w * integral / (4 * math.pi * 1.9), rtol=0.01)
+    np.testing.assert_allclose(s * r, clean.avg_eirp_w * integral / (4 * math.pi * 1.9), rtol=0.01)
 
 
 @pytest.mark.parametrize("antenna", [replace(PANEL, elec_tilt_deg=4.0), TABULATED], ids=["3GPP sector", "tabulated"])
@@ -290,7 +290,7 @@ def test_discrete_sub_sources_converge_to_the_continuous_aperture(antenna):
     f, r, u = rng.uniform([-20, -20, -10], [20, 20, 10], size=(20_000, 3)).T.copy()
     segment = np.hypot(np.hypot(f, r), np.maximum(np.abs(u) - length / 2, 0.0))
     keep = segment >= lam  # one wavelength from the aperture and beyond
-    args = (pattern, PANEL.eirp_w, length, lam, f, r, u, minimum_distance_m(PANEL))
+    args = (pattern, PANEL.avg_eirp_w, length, lam, f, r, u, minimum_distance_m(PANEL))
     exact = synthetic.synthetic_kernel(*args, method="continuous")
     errors = []
     for beta in (0.25, 0.125, 0.0625):
@@ -325,7 +325,7 @@ def test_power_through_a_sphere_is_the_power_radiated(antenna):
     s = power_density(antenna, pts, model="synthetic")
     flux = np.sum(s * np.cos(e)) * (math.pi / n_el) * (2 * math.pi / n_az) * radius**2
     # the pattern the models use (an envelope since the full-wave issue), not the nominal one
-    assert flux == pytest.approx(antenna.net_power_w * pattern_efficiency(antenna, pattern_for(antenna)), rel=0.01)
+    assert flux == pytest.approx(antenna.avg_net_power_w * pattern_efficiency(antenna, pattern_for(antenna)), rel=0.01)
 
 
 def test_synthetic_handles_people_below_and_beside_the_array():
@@ -346,7 +346,7 @@ def test_power_scales_linearly(factor, which):
     """Law: power density is proportional to the net power, for every model."""
     antenna = ALL[which]
     pts = np.random.default_rng(which).uniform(-30, 30, size=(200, 3))
-    scaled = replace(antenna, net_power_w=antenna.net_power_w * factor)
+    scaled = replace(antenna, avg_net_power_w=antenna.avg_net_power_w * factor)
     for model in ("auto", "spherical"):
         np.testing.assert_allclose(
             power_density(scaled, pts, model=model), factor * power_density(antenna, pts, model=model), rtol=1e-10
@@ -435,13 +435,13 @@ def test_point_at_the_source_is_finite_and_clamped():
     r_min = minimum_distance_m(PANEL)
     assert r_min == pytest.approx(PANEL.wavelength_m / (2 * math.pi))
     at = power_density(PANEL, [0.0, 0.0, 0.0], model="spherical")
-    assert at == pytest.approx(PANEL.eirp_w * pattern_for(PANEL).gain(0.0, 0.0) / (4 * math.pi * r_min**2))
+    assert at == pytest.approx(PANEL.avg_eirp_w * pattern_for(PANEL).gain(0.0, 0.0) / (4 * math.pi * r_min**2))
 
 
 def test_distance_to_limit_matches_the_spherical_closed_form_and_follows_the_tilt():
     """OET 65 far field: R = sqrt(F EIRP / (4 pi S_L)), measured along the tilted main beam."""
     for reflection, factor in REFLECTION_FACTORS.items():
-        expected = math.sqrt(factor * PANEL.eirp_w / (4 * math.pi * 10.0))
+        expected = math.sqrt(factor * PANEL.avg_eirp_w / (4 * math.pi * 10.0))
         assert boresight_distance_to_limit(PANEL, 10.0, model="spherical", reflection=reflection) == pytest.approx(
             expected, rel=1e-3
         )
@@ -449,7 +449,7 @@ def test_distance_to_limit_matches_the_spherical_closed_form_and_follows_the_til
     direction = beam_direction(tilted)
     assert direction[2] == pytest.approx(-math.sin(math.radians(9.0)))
     assert boresight_distance_to_limit(tilted, 10.0, model="spherical") == pytest.approx(
-        math.sqrt(PANEL.eirp_w / (40 * math.pi)), rel=1e-3
+        math.sqrt(PANEL.avg_eirp_w / (40 * math.pi)), rel=1e-3
     )
     assert boresight_distance_to_limit(PANEL, 1e9, model="auto") == 0.0  # never exceeded
     d = boresight_distance_to_limit(tilted, 10.0)
@@ -457,7 +457,7 @@ def test_distance_to_limit_matches_the_spherical_closed_form_and_follows_the_til
 
 
 def test_time_averaged_power_is_taken_as_given():
-    """Antenna.net_power_w already includes duty factor: half the power, half the density."""
-    half = replace(PANEL, net_power_w=PANEL.net_power_w / 2)
+    """Antenna.avg_net_power_w already includes duty factor: half the power, half the density."""
+    half = replace(PANEL, avg_net_power_w=PANEL.avg_net_power_w / 2)
     pts = north([1.0, 10.0])
     np.testing.assert_allclose(power_density(half, pts), power_density(PANEL, pts) / 2)

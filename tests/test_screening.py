@@ -49,7 +49,7 @@ def test_erp_threshold_is_the_limit_reached_by_the_spherical_model(f_mhz, multip
         id="X",
         kind="omni",
         frequency_mhz=f_mhz,
-        net_power_w=1.64 * erp,
+        avg_net_power_w=1.64 * erp,
         gain_dbi=0.0,
         position_m=(0.0, 0.0, 0.0),
         v_beamwidth_deg=180.0,

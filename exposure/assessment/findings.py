@@ -107,7 +107,7 @@ def _validity_flags(site: Site, body_height: float, limits: SiteLimits, measure_
             if crossing:
                 bound = float(
                     aperture.near_field_power_density(
-                        antenna.net_power_w, antenna.diameter_m, antenna.aperture_efficiency
+                        antenna.avg_net_power_w, antenna.diameter_m, antenna.aperture_efficiency
                     )
                 ) * reflection_factor(site)
                 tier = ACCESS_TIER[next(s.access for s in accessible if s.name == crossing)]

@@ -26,7 +26,7 @@ Models
     conservative: near the aperture's ends, off the beam, the synthetic value can exceed
     it by several dB and is the better estimate there.)
 
-Time averaging: ``Antenna.net_power_w`` is already time-averaged (duty factor and any
+Time averaging: ``Antenna.avg_net_power_w`` is already time-averaged (duty factor and any
 power-reduction factor); nothing here applies them again.
 """
 
@@ -184,14 +184,14 @@ def model_for(antenna: Antenna | Prepared, model: str = "auto") -> str:
 def _kernel(antenna: Antenna | Prepared, model: str, auto: bool, pattern: Pattern, spatial_peak: bool = True) -> Kernel:
     """A function of antenna-frame coordinates (f, r, u) giving W/m² without reflection."""
     r_min = minimum_distance_m(antenna)
-    eirp = antenna.eirp_w
+    eirp = antenna.avg_eirp_w
     if model == "spherical":
         return lambda f, r, u: farfield.spherical_kernel(pattern, eirp, f, r, u, r_min)
     if model == "cylindrical":
         # an array's single-beam width (not the scan range): all power in one beam, conservative
         h_bw = None if antenna.kind == "omni" else pattern.h_beamwidth_deg
         return lambda f, r, u: cylindrical.cylindrical_kernel(
-            pattern, antenna.net_power_w, antenna.gain_linear, _given(antenna.length_m), h_bw, f, r, u, r_min
+            pattern, antenna.avg_net_power_w, antenna.gain_linear, _given(antenna.length_m), h_bw, f, r, u, r_min
         )
     if model == "synthetic":
         lam = antenna.wavelength_m
@@ -209,7 +209,7 @@ def _kernel(antenna: Antenna | Prepared, model: str, auto: bool, pattern: Patter
     if model == "aperture":
         return lambda f, r, u: aperture.aperture_kernel(
             pattern,
-            antenna.net_power_w,
+            antenna.avg_net_power_w,
             antenna.gain_linear,
             _given(antenna.diameter_m),
             antenna.wavelength_m,

@@ -38,8 +38,8 @@ def _check_antenna(antenna: Antenna) -> None:
     problems = []
     if not (math.isfinite(antenna.frequency_mhz) and antenna.frequency_mhz > 0):
         problems.append(f"{where}: frequency_mhz {antenna.frequency_mhz!r} must be > 0")
-    if not (math.isfinite(antenna.net_power_w) and antenna.net_power_w >= 0):
-        problems.append(f"{where}: net_power_w {antenna.net_power_w!r} must be >= 0 W")
+    if not (math.isfinite(antenna.avg_net_power_w) and antenna.avg_net_power_w >= 0):
+        problems.append(f"{where}: avg_net_power_w {antenna.avg_net_power_w!r} must be >= 0 W")
     if not math.isfinite(antenna.gain_dbi):
         problems.append(f"{where}: gain_dbi {antenna.gain_dbi!r} must be finite")
     for name in ("length_m", "diameter_m"):

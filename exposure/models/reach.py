@@ -133,14 +133,14 @@ def boresight_distance_to_limit(
     model_for(antenna, model)
     _is_spatial_peak(evaluation)
     antenna = prepare(antenna)  # checked, its pattern and frame built once for every step below
-    if antenna.net_power_w == 0.0:
+    if antenna.avg_net_power_w == 0.0:
         return 0.0
 
     def along(d):
         return power_density_along_beam(antenna, d, model=model, reflection=reflection, evaluation=evaluation)
 
     r_lo = minimum_distance_m(antenna)
-    r_hi = max(math.sqrt(factor * antenna.eirp_w / (4.0 * math.pi * limit)) * 1.01, 2.0 * r_lo)
+    r_hi = max(math.sqrt(factor * antenna.avg_eirp_w / (4.0 * math.pi * limit)) * 1.01, 2.0 * r_lo)
     for _ in range(60):
         if along(np.array([r_hi]))[0] <= limit:
             break
@@ -183,7 +183,7 @@ def ray_extents(
     FCC OET Bulletin 65, Edition 97-01 (1997) (from memory; docs/references.md § 3). The spherical bound of the far-field form.
     """
     lowest = min(limits_w_m2)
-    bound = math.sqrt(reflection * antenna.eirp_w / (4 * math.pi * lowest))
+    bound = math.sqrt(reflection * antenna.avg_eirp_w / (4 * math.pi * lowest))
     if antenna.kind == "dish" and antenna.diameter_m:
         bound = max(bound, 0.6 * antenna.diameter_m**2 / antenna.wavelength_m)
     scan = np.geomspace(1e-3, max(1.5 * bound, 0.5), SCAN_SAMPLES)

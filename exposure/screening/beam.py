@@ -14,6 +14,7 @@ from exposure.limits import load_standard
 from exposure.models import REFLECTION_FACTORS, boresight_distance_to_limit, model_for
 from exposure.models.aperture import dish_gain
 from exposure.screening.exemptions import mpe_exemption
+from exposure.site.model import Emitter
 from exposure.units import linear_to_db, wavelength_m
 from exposure.vocabulary import EMITTER_KINDS, MODELS, REFLECTIONS, SECTOR_KINDS, TIERS, EmitterKind
 
@@ -138,7 +139,7 @@ def screen_emitter(o: ScreenRequest) -> dict[str, Any]:
         id="screen",
         kind=kind,
         frequency_mhz=o.frequency_mhz,
-        net_power_w=net_power,
+        avg_net_power_w=net_power,
         gain_dbi=gain if gain is not None else 0.0,
         position_m=(0.0, 0.0, 0.0),
         h_beamwidth_deg=o.h_beamwidth_deg if kind in SECTOR_KINDS else None,
@@ -147,6 +148,8 @@ def screen_emitter(o: ScreenRequest) -> dict[str, Any]:
         diameter_m=o.diameter_m,
         aperture_efficiency=o.aperture_efficiency,
     )
+    # the options are at full output (no duty factor): time-averaged and full figures agree
+    emitter = Emitter(antenna, operator="", net_power_w=net_power, eirp_w=antenna.avg_eirp_w)
 
     needs = _needs(o, kind, gain is not None)
     applicable = [m for m in SCREEN_ORDER if not needs[m]]
@@ -180,8 +183,8 @@ def screen_emitter(o: ScreenRequest) -> dict[str, Any]:
 
     result: dict[str, Any] = {
         "model": chosen,
-        "eirp_w": antenna.eirp_w,
-        "erp_w": antenna.erp_w,
+        "eirp_w": emitter.eirp_w,
+        "erp_w": emitter.erp_w,
         "boundary_m": primary,
         "model_requested": o.model,
         "frequency_mhz": o.frequency_mhz,
@@ -205,7 +208,7 @@ def screen_emitter(o: ScreenRequest) -> dict[str, Any]:
         )
     if o.distance_m is not None:
         if o.standard == "fcc":
-            ex = mpe_exemption(antenna.erp_w, o.frequency_mhz, o.distance_m)
+            ex = mpe_exemption(emitter.erp_w, o.frequency_mhz, o.distance_m)
             result["exemption"] = {
                 "erp_threshold_w": ex.threshold,
                 "exempt": ex.exempt,

@@ -199,7 +199,7 @@ class EmitterBase(Strict):
             id=self.id,
             kind=self.kind,
             frequency_mhz=self.frequency_mhz,
-            net_power_w=self.net_power_w * self.time_averaging_factor,
+            avg_net_power_w=self.net_power_w * self.time_averaging_factor,
             gain_dbi=self.peak_gain_dbi,
             position_m=(self.x_m, self.y_m, self.z_m),
             pattern=pattern,

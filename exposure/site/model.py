@@ -38,7 +38,7 @@ class Emitter:
     Attributes
     ----------
     antenna : Antenna
-        The models' input, time-averaged (``antenna.net_power_w`` is :attr:`avg_net_power_w`).
+        The models' input, time-averaged (``antenna.avg_net_power_w`` is :attr:`avg_net_power_w`).
     operator : str
         The licensee operating it.
     net_power_w, eirp_w : float

@@ -137,3 +137,13 @@ def _os_reason(exc: OSError) -> str:
 
 def _size(n: int) -> str:
     return f"{n / 2**20:.1f} MiB" if n >= 2**20 else f"{n / 1024:.0f} kiB" if n >= 1024 else f"{n} bytes"
+
+
+def field_path(loc: tuple[Any, ...]) -> str:
+    """Where in a document a problem is, as people write it: ``('tiers', 'occupational', 'bands', 2,
+    'e_v_m')`` -> ``tiers.occupational.bands[2].e_v_m``; ``(top level)`` for the document itself.
+    The one spelling of a field's place in every message about a record or a limit table."""
+    text = ""
+    for part in loc:
+        text += f"[{part}]" if isinstance(part, int) else (f".{part}" if text else str(part))
+    return text or "(top level)"

@@ -150,10 +150,6 @@ def _area_text(area_m2: float) -> str:
     return f"{numbers.area(area_m2)} m²" if area_m2 > 0 else "a zone smaller than one grid cell (found at a hot spot)"
 
 
-def _pct(ratio: float) -> str:
-    return numbers.percent(ratio)
-
-
 def findings(site, surfaces, work, emitters, limits, measure_above) -> list[Flag]:
     r"""The findings of an assessment, each with a stable code and a severity; the verdict is the worst.
 
@@ -191,7 +187,7 @@ def findings(site, surfaces, work, emitters, limits, measure_above) -> list[Flag
                     Flag(
                         "exceedance-no-access",
                         "info",
-                        f"{s.name} (no access) reaches {_pct(worst)} of a limit; keep it closed to people.",
+                        f"{s.name} (no access) reaches {numbers.percent(worst)} of a limit; keep it closed to people.",
                         surface=s.name,
                     )
                 )
@@ -204,7 +200,7 @@ def findings(site, surfaces, work, emitters, limits, measure_above) -> list[Flag
                 Flag(
                     f"{'public' if tier == 'general_public' else 'occupational'}-exceedance",
                     "mitigate",
-                    f"{s.name} ({s.access}) reaches {_pct(ratio)} of the {label[tier]} limit at "
+                    f"{s.name} ({s.access}) reaches {numbers.percent(ratio)} of the {label[tier]} limit at "
                     f"({s.max_at_m[tier][0]:.1f}, {s.max_at_m[tier][1]:.1f}) m; {_area_text(s.area_above_m2[tier])} "
                     f"exceed it. Restrict access or reduce power. Shared responsibility (≥ 5 % of own limit): "
                     f"{', '.join(who) or 'none'} ({', '.join(ops) or '-'}).",
@@ -217,8 +213,8 @@ def findings(site, surfaces, work, emitters, limits, measure_above) -> list[Flag
                 Flag(
                     "near-limit",
                     "measure",
-                    f"{s.name} ({s.access}) reaches {_pct(ratio)} of the {label[tier]} limit, within the "
-                    f"model's ±3 dB band (≥ {_pct(measure_above)}); confirm by measurement.",
+                    f"{s.name} ({s.access}) reaches {numbers.percent(ratio)} of the {label[tier]} limit, within the "
+                    f"model's ±3 dB band (≥ {numbers.percent(measure_above)}); confirm by measurement.",
                     surface=s.name,
                 )
             )
@@ -229,7 +225,7 @@ def findings(site, surfaces, work, emitters, limits, measure_above) -> list[Flag
                     "access-control",
                     "info",
                     f"{s.name}: {_area_text(s.area_above_m2['general_public'])} exceed the general-public limit "
-                    f"(up to {_pct(s.max_ratio['general_public'])}); only trained workers may enter: access control "
+                    f"(up to {numbers.percent(s.max_ratio['general_public'])}); only trained workers may enter: access control "
                     "and signs at the boundary are needed.",
                     emitters=tuple(who),
                     surface=s.name,
@@ -241,7 +237,7 @@ def findings(site, surfaces, work, emitters, limits, measure_above) -> list[Flag
                 Flag(
                     "power-down-before-work",
                     "info",
-                    f"{w.name}: {_pct(w.ratio['occupational'])} of the occupational limit; power down and lock out "
+                    f"{w.name}: {numbers.percent(w.ratio['occupational'])} of the occupational limit; power down and lock out "
                     f"{', '.join(w.power_down)} ({', '.join(w.power_down_operators)}) before work there.",
                     emitters=w.power_down,
                     work_position=w.name,

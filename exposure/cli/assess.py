@@ -16,11 +16,11 @@ from exposure.cli.common import (
     Progress,
     StandardOption,
     console,
-    fmt,
     make_table,
     print_cautions,
     print_json,
 )
+from exposure.numbers import number
 
 EXIT_FAIL_ON = 3
 
@@ -106,7 +106,7 @@ def render(result) -> None:
         emitters.add_column(col, justify="right" if col in ("MHz", "EIRP W", "ERP W") else "left")
     for e in result.emitters:
         emitters.add_row(
-            esc(e.id), esc(e.operator), e.kind, fmt(e.frequency_mhz, 5), fmt(e.eirp_w), fmt(e.erp_w), e.model
+            esc(e.id), esc(e.operator), e.kind, number(e.frequency_mhz, 5), number(e.eirp_w), number(e.erp_w), e.model
         )
     out.print(emitters)
     boundaries = make_table(
@@ -142,8 +142,8 @@ def render(result) -> None:
         surfaces.add_row(
             esc(s.name),
             s.access,
-            fmt(100 * s.max_ratio["general_public"]),
-            fmt(100 * s.max_ratio["occupational"]),
+            number(100 * s.max_ratio["general_public"]),
+            number(100 * s.max_ratio["occupational"]),
             f"{s.area_above_m2['general_public']:.1f}",
             f"{s.area_above_m2['occupational']:.1f}",
             verdict,
@@ -155,7 +155,7 @@ def render(result) -> None:
             work.add_column(col, justify="right" if col.startswith("%") else "left")
         for w in result.work_positions:
             down = ", ".join(w.power_down) + (f" ({', '.join(w.power_down_operators)})" if w.power_down else "")
-            work.add_row(esc(w.name), fmt(100 * w.ratio["occupational"]), esc(down) or "nothing")
+            work.add_row(esc(w.name), number(100 * w.ratio["occupational"]), esc(down) or "nothing")
         out.print(work)
     if result.flags:
         out.print("[bold]Findings[/bold]")

@@ -9,9 +9,11 @@ from typing import Annotated, Any
 
 import typer
 
+from exposure.vocabulary import STANDARDS
+
 StandardOption = Annotated[
     str | None,
-    typer.Option("--standard", help="Limit set: fcc | icnirp-2020 | icnirp-1998 | canada-sc6 (default: the site's)."),
+    typer.Option("--standard", help="Limit set: " + " | ".join(STANDARDS) + " (default: the site's)."),
 ]
 LimitsFileOption = Annotated[
     Path | None,
@@ -83,14 +85,6 @@ def print_cautions() -> None:
 def is_terminal(stream=None) -> bool:
     stream = stream or sys.stderr
     return bool(getattr(stream, "isatty", lambda: False)())
-
-
-def fmt(value: float | None, digits: int = 3) -> str:
-    """A number for a table: the worksheet's one formatter (:func:`exposure.numbers.number`),
-    so the same number reads the same in the CLI, the JSON-derived text and the PDF."""
-    from exposure.numbers import number
-
-    return number(value, digits)
 
 
 class Progress:

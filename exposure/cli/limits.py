@@ -13,12 +13,14 @@ from typing import TYPE_CHECKING, Annotated, Any
 
 import typer
 
+from exposure.vocabulary import DEFAULT_STANDARD, STANDARDS
+
 if TYPE_CHECKING:  # imported inside the command: startup time matters
     from exposure.limits import LimitTable, Quantity, TierLimit
 
 _COMMAND = "exposure limits"
 _FREQ_HELP = "Frequency [MHz]."
-_STANDARD_HELP = "Built-in limit table: fcc, icnirp-2020, icnirp-1998 or canada-sc6."
+_STANDARD_HELP = "Built-in limit table: " + ", ".join(STANDARDS) + "."
 _FILE_HELP = "Your own limit table (TOML, schema exposure-limits/1); wins over --standard."
 
 
@@ -32,7 +34,7 @@ def limits(
     frequency_mhz: Annotated[
         str | None, typer.Argument(metavar="FREQ_MHZ", help=_FREQ_HELP, show_default=False)
     ] = None,
-    standard: Annotated[str, typer.Option("--standard", help=_STANDARD_HELP)] = "fcc",
+    standard: Annotated[str, typer.Option("--standard", help=_STANDARD_HELP)] = DEFAULT_STANDARD,
     limits_file: Annotated[
         Path | None,
         typer.Option("--limits-file", help=_FILE_HELP, show_default=False),
@@ -211,7 +213,10 @@ def _list_text(tables: list[LimitTable]) -> str:
 
 
 def _fmt(value: float | None) -> str:
-    return "–" if value is None else f"{value:.4g}"
+    """A limit to four significant figures (:func:`exposure.numbers.number`)."""
+    from exposure.numbers import number
+
+    return number(value, 4)
 
 
 def _printed(q: Quantity) -> str:

@@ -13,10 +13,10 @@ from exposure.cli.common import (
     LimitsFileOption,
     StandardOption,
     console,
-    fmt,
     make_table,
     print_json,
 )
+from exposure.numbers import number
 
 
 def parse_point(text: str) -> tuple[float, float, float]:
@@ -68,15 +68,15 @@ def probe(
     for e in result["emitters"]:
         table.add_row(
             esc(e["id"]),
-            fmt(e["frequency_mhz"], 5),
+            number(e["frequency_mhz"], 5),
             e["model"],
-            fmt(e["power_density_w_m2"]),
-            fmt(100 * e["ratio"]["general_public"]),
-            fmt(100 * e["ratio"]["occupational"]),
+            number(e["power_density_w_m2"]),
+            number(100 * e["ratio"]["general_public"]),
+            number(100 * e["ratio"]["occupational"]),
         )
     total = result["total_ratio"]
     table.add_row(
-        "total", "", "", "", fmt(100 * total["general_public"]), fmt(100 * total["occupational"]), style="bold"
+        "total", "", "", "", number(100 * total["general_public"]), number(100 * total["occupational"]), style="bold"
     )
     out.print(table)
     out.print("Point value: at the point itself, with the site's ground reflection.")
@@ -84,9 +84,9 @@ def probe(
     if body is not None:
         rule = "peak" if body["evaluation"] == "peak" else "spatial average"
         out.print(
-            f"Body value ({rule} over {fmt(body['from_z_m'])}–{fmt(body['to_z_m'])} m, as the assessment uses for a "
-            f"person standing here): {fmt(100 * body['total_ratio']['general_public'])} % of the general-public limit, "
-            f"{fmt(100 * body['total_ratio']['occupational'])} % of the occupational limit."
+            f"Body value ({rule} over {number(body['from_z_m'])}–{number(body['to_z_m'])} m, as the assessment uses for a "
+            f"person standing here): {number(100 * body['total_ratio']['general_public'])} % of the general-public limit, "
+            f"{number(100 * body['total_ratio']['occupational'])} % of the occupational limit."
         )
     if result["element_zone"]:
         out.print(

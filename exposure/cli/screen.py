@@ -13,7 +13,8 @@ from typing import Annotated, Any
 
 import typer
 
-from exposure.cli.common import fmt
+from exposure.numbers import number
+from exposure.vocabulary import DEFAULT_STANDARD, EMITTER_KINDS, MODELS, STANDARDS
 
 
 def register(app: typer.Typer) -> None:
@@ -49,14 +50,13 @@ def screen(
             show_default=False,
         ),
     ] = None,
-    model: Annotated[
-        str, typer.Option("--model", help="auto | spherical | cylindrical | synthetic | aperture | endfire.")
-    ] = "auto",
+    model: Annotated[str, typer.Option("--model", help=" | ".join(MODELS) + ".")] = "auto",
     kind: Annotated[
         str | None,
         typer.Option(
             "--kind",
-            help="panel | omni | dish | array | directional (default: dish with --diameter-m, panel with --h-beamwidth-deg, else omni).",
+            help=" | ".join(EMITTER_KINDS)
+            + " (default: dish with --diameter-m, panel with --h-beamwidth-deg, else omni).",
             show_default=False,
         ),
     ] = None,
@@ -88,8 +88,8 @@ def screen(
         ),
     ] = "typical",
     standard: Annotated[
-        str, typer.Option("--standard", help="Limit table: fcc | icnirp-2020 | icnirp-1998 | canada-sc6.")
-    ] = "fcc",
+        str, typer.Option("--standard", help="Limit table: " + " | ".join(STANDARDS) + ".")
+    ] = DEFAULT_STANDARD,
     distance_m: Annotated[
         float | None,
         typer.Option(
@@ -131,14 +131,14 @@ def screen(
 def _text(r: dict[str, Any]) -> str:
     tiers = list(r["limits_w_m2"])
     lines = [
-        f"Screening at {fmt(r['frequency_mhz'])} MHz: EIRP {fmt(r['eirp_w'])} W, ERP {fmt(r['erp_w'])} W"
+        f"Screening at {number(r['frequency_mhz'])} MHz: EIRP {number(r['eirp_w'])} W, ERP {number(r['erp_w'])} W"
         + (
-            f" (net power {fmt(r['net_power_w'])} W, gain {r['gain_dbi']:.1f} dBi)"
+            f" (net power {number(r['net_power_w'])} W, gain {r['gain_dbi']:.1f} dBi)"
             if r["net_power_w"] is not None
             else ""
         ),
         f"Limits, {r['citation']}: "
-        + ", ".join(f"{t.replace('_', ' ')} {fmt(v)} W/m²" for t, v in r["limits_w_m2"].items())
+        + ", ".join(f"{t.replace('_', ' ')} {number(v)} W/m²" for t, v in r["limits_w_m2"].items())
         + f"; ground reflection {r['reflection']} (x{r['reflection_factor']:g})",
         "",
         "Distance along the main beam to the limit [m]:",
@@ -146,10 +146,10 @@ def _text(r: dict[str, Any]) -> str:
     ]
     auto = r["model_requested"] == "auto"
     if auto:
-        lines.append(f"* {'auto':<13s}" + "".join(f"{fmt(r['boundary_m'][t]):>16s}" for t in tiers))
+        lines.append(f"* {'auto':<13s}" + "".join(f"{number(r['boundary_m'][t]):>16s}" for t in tiers))
     for name, values in r["models"].items():
         mark = "*" if name == r["model"] and not auto else " "
-        lines.append(f"{mark} {name:<13s}" + "".join(f"{fmt(values[t]):>16s}" for t in tiers))
+        lines.append(f"{mark} {name:<13s}" + "".join(f"{number(values[t]):>16s}" for t in tiers))
     for name, why in r["not_applicable"].items():
         lines.append(f"  {name:<13s} not applicable: {why}")
     lines.append(f"(* governs: {r['governing']['why']})")
@@ -161,8 +161,8 @@ def _text(r: dict[str, Any]) -> str:
         if ex["applicable"]:
             verdict = "exempt" if ex["exempt"] else "not exempt"
             lines.append(
-                f"Exemption, {ex['citation']}: ERP threshold {fmt(ex['erp_threshold_w'])} W at "
-                f"{fmt(ex['distance_m'])} m; ERP {fmt(r['erp_w'])} W: {verdict} from routine evaluation"
+                f"Exemption, {ex['citation']}: ERP threshold {number(ex['erp_threshold_w'])} W at "
+                f"{number(ex['distance_m'])} m; ERP {number(r['erp_w'])} W: {verdict} from routine evaluation"
             )
         else:
             lines.append(f"Exemption, {ex['citation']}: {ex['note']}")

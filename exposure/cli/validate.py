@@ -12,10 +12,10 @@ from exposure.cli.common import (
     LimitsFileOption,
     StandardOption,
     console,
-    fmt,
     make_table,
     print_json,
 )
+from exposure.numbers import number
 
 
 def validate(
@@ -118,11 +118,11 @@ def _render(site, summary: dict) -> None:
             row = [
                 f"  {esc(e.id)}",
                 e.kind,
-                fmt(e.frequency_mhz, 5),
-                fmt(e.net_power_w),
+                number(e.frequency_mhz, 5),
+                number(e.net_power_w),
                 f"{e.gain_dbi:.1f}",
-                fmt(e.eirp_w),
-                fmt(e.erp_w),
+                number(e.eirp_w),
+                number(e.erp_w),
                 f"{e.duty_factor:g}",
             ]
             if with_patterns:

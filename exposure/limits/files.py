@@ -20,6 +20,7 @@ from pydantic import (
 )
 
 from exposure.errors import InputError, UnknownKeyError
+from exposure.inputs import field_path
 from exposure.limits.tables import Band, LimitTable, PowerLaw, Status
 from exposure.vocabulary import DEFAULT_STANDARD, STANDARDS, TIERS
 
@@ -267,7 +268,7 @@ def _parse(data: bytes, path: Path) -> LimitTable:
 
 def _describe(error: Any) -> str:
     """One line for a pydantic error: the field's path, then the reason."""
-    where = _field_path(error["loc"])
+    where = field_path(error["loc"])
     kind = error["type"]
     if kind == "extra_forbidden":
         reason = f"unknown key (not part of schema {SCHEMA})"
@@ -281,17 +282,6 @@ def _describe(error: Any) -> str:
         elif isinstance(given, (int, float, bool)) and kind != "value_error":
             reason += f" (got {given!r})"
     return f"{where}: {reason}"
-
-
-def _field_path(loc: tuple[Any, ...]) -> str:
-    """``('tiers', 'occupational', 'bands', 2, 'e_v_m')`` -> ``tiers.occupational.bands[2].e_v_m``."""
-    text = ""
-    for part in loc:
-        if isinstance(part, int):
-            text += f"[{part}]"
-        else:
-            text += f".{part}" if text else str(part)
-    return text or "(top level)"
 
 
 def _cross_checks(model: _TableModel) -> list[str]:

@@ -16,7 +16,7 @@ from exposure.models.aperture import dish_gain
 from exposure.screening.exemptions import mpe_exemption
 from exposure.site.model import Emitter
 from exposure.units import linear_to_db, wavelength_m
-from exposure.vocabulary import EMITTER_KINDS, MODELS, REFLECTIONS, SECTOR_KINDS, TIERS, EmitterKind
+from exposure.vocabulary import DEFAULT_STANDARD, EMITTER_KINDS, MODELS, REFLECTIONS, SECTOR_KINDS, TIERS, EmitterKind
 
 SCREEN_ORDER: tuple[str, ...] = ("spherical", "cylindrical", "synthetic", "aperture", "endfire")
 """The models ``exposure screen`` shows side by side, in this order."""
@@ -40,7 +40,7 @@ class ScreenRequest:
     diameter_m: float | None = None
     aperture_efficiency: float = 0.55
     reflection: str = "typical"
-    standard: str = "fcc"
+    standard: str = DEFAULT_STANDARD
     distance_m: float | None = None
 
 

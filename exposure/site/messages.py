@@ -9,6 +9,7 @@ from typing import Any
 
 from pydantic import BaseModel, ValidationError
 
+from exposure.inputs import field_path
 from exposure.site.emitters import (
     ArrayEmitter,
     DirectionalEmitter,
@@ -33,7 +34,7 @@ def format_validation_errors(exc: ValidationError, data: dict | None = None) -> 
     lines = []
     for err in exc.errors(include_url=False):
         loc = _clean_loc(err["loc"])
-        lines.append(f"{_loc_text(loc) or '(top level)'}: {_reason(dict(err), loc, data or {})}")
+        lines.append(f"{field_path(loc)}: {_reason(dict(err), loc, data or {})}")
     return list(dict.fromkeys(lines))  # unions can repeat a line; keep the first
 
 
@@ -43,13 +44,6 @@ def _clean_loc(loc: tuple) -> tuple:
     if len(loc) >= 3 and loc[0] == "emitters" and isinstance(loc[1], int) and loc[2] in _EMITTER_MODELS:
         loc = loc[:2] + loc[3:]
     return loc
-
-
-def _loc_text(loc: tuple) -> str:
-    text = ""
-    for part in loc:
-        text += f"[{part}]" if isinstance(part, int) else (f".{part}" if text else str(part))
-    return text
 
 
 def _model_at(loc: tuple, kind: Any) -> type[BaseModel] | None:

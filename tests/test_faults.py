@@ -20,8 +20,9 @@ import time
 from pathlib import Path
 
 import pytest
-from conftest import SAMPLE_SITES
 from pypdf import PdfReader
+
+from tests.helpers import SAMPLE_SITES
 
 pytestmark = [pytest.mark.slow, pytest.mark.skipif(sys.platform == "win32", reason="POSIX signals")]
 

@@ -15,12 +15,12 @@ import stat
 import sys
 
 import pytest
-from conftest import BASE_RECORD
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 from typer.testing import CliRunner
 
 from exposure.cli import app
+from tests.helpers import BASE_RECORD
 
 runner = CliRunner()
 

@@ -14,10 +14,10 @@ from __future__ import annotations
 import json
 
 import pytest
-from conftest import REPO, SAMPLE_SITES
 from typer.testing import CliRunner
 
 from exposure.cli import app
+from tests.helpers import REPO, SAMPLE_SITES
 
 DATA = REPO / "tests" / "data" / "regression"
 

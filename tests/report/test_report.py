@@ -16,7 +16,6 @@ import re
 from dataclasses import dataclass
 
 import pytest
-from conftest import BASE_RECORD, SAMPLE_SITES
 from pypdf import PdfReader
 from typer.testing import CliRunner
 
@@ -25,6 +24,7 @@ from exposure.cli import app
 from exposure.report import render_pdf, write_report
 from exposure.report import text as fmt
 from exposure.site import load_site
+from tests.helpers import BASE_RECORD, SAMPLE_SITES
 
 DATE = dt.date(2024, 5, 1)
 COARSE_GRID_M = {"rooftop-larkspur.toml": 1.0, "monopole-willow-park.toml": 2.0}

@@ -228,7 +228,9 @@ def test_sample_roof_areas_match_shapely():
     """The demo roof's areas (outline less the penthouse) against shapely computed here."""
     from exposure.site import load_site as load_file
 
-    sample = load_file(__import__("conftest").REPO / "sample_sites" / "rooftop-larkspur.toml")
+    from tests.helpers import REPO
+
+    sample = load_file(REPO / "sample_sites" / "rooftop-larkspur.toml")
     roof = next(s for s in sample.surfaces if s.name == "Main roof")
     expected = shapely.Polygon(roof.outline, roof.holes).area
     assert math.isclose(expected, 28 * 42 - 14 * 10 - 30)
@@ -290,10 +292,10 @@ def test_cli_in_a_pipe_shows_full_names_and_one_number_format(tmp_path):
     """In a pipe (CliRunner is not a terminal) tables are never cut at 80 columns; the same number
     reads the same in the CLI table, the findings (text built from the JSON) and the PDF —
     all through exposure.numbers."""
-    from conftest import REPO
     from pypdf import PdfReader
 
     from exposure.numbers import number, percent
+    from tests.helpers import REPO
 
     sample = REPO / "sample_sites" / "rooftop-larkspur.toml"
     out = runner.invoke(app, ["assess", str(sample), "--grid-m", "1"]).stdout
@@ -317,7 +319,7 @@ def test_a_weak_link_dish_is_not_a_measurement_finding(tmp_path):
     (its near-field beam crosses the surface). OET 65's on-axis near-field bound 16ηP/(πD²)
     = 16 × 0.55 × 0.1/(π × 0.36) = 0.78 W/m² (× 2.56 reflection = 2.0 W/m²) is a fifth of the
     10 W/m² public limit (47 CFR 1.1310), so nothing calls for a measurement; at 50 W it does."""
-    from conftest import BASE_RECORD
+    from tests.helpers import BASE_RECORD
 
     data = json.loads(json.dumps(BASE_RECORD))
     data["emitters"] = [dict(data["emitters"][1], power_w=0.1, elevation_deg=-20.0)]
@@ -376,7 +378,7 @@ def test_report_never_overwrites_its_record_and_refuses_fast(tmp_path, monkeypat
     exit 2 within a second, before any computing."""
     import time
 
-    from conftest import BASE_RECORD
+    from tests.helpers import BASE_RECORD
 
     monkeypatch.chdir(tmp_path)
     record = tmp_path / "test-site.json"

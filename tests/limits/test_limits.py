@@ -16,7 +16,6 @@ from itertools import pairwise
 from pathlib import Path
 
 import pytest
-from conftest import USER_HEADER, USER_S_FLAT, USER_TABLE, user_tier
 
 from exposure.errors import InputError, OutOfRangeError, UnknownKeyError
 from exposure.limits import (
@@ -27,8 +26,9 @@ from exposure.limits import (
     load_standard,
     resolve,
 )
+from tests.helpers import REPO, USER_HEADER, USER_S_FLAT, USER_TABLE, user_tier
 
-LIMITS_DIR = Path(__file__).resolve().parents[1] / "limits"
+LIMITS_DIR = REPO / "limits"
 
 MW_CM2 = 10.0  # 1 mW/cm² = 10 W/m² (FCC Table 1 gives power density in mW/cm²)
 Z0 = 376.73  # free-space impedance [ohm], CODATA (docs/references.md §3); 377 in trade use

@@ -9,11 +9,11 @@ from __future__ import annotations
 import json
 
 import pytest
-from conftest import USER_TABLE
 from typer.testing import CliRunner
 
 from exposure.cli import app
 from exposure.limits import STANDARDS
+from tests.helpers import USER_TABLE
 
 runner = CliRunner()
 

@@ -21,12 +21,12 @@ import tomllib
 from pathlib import Path
 
 import pytest
-from conftest import REPO, SAMPLE_SITES
 from typer.testing import CliRunner
 
 from exposure import __version__
 from exposure.batch import CSV_COLUMNS, SiteRow
 from exposure.cli import app
+from tests.helpers import REPO, SAMPLE_SITES
 
 HAS_DISTRIBUTED = importlib.util.find_spec("distributed") is not None
 needs_distributed = pytest.mark.skipif(not HAS_DISTRIBUTED, reason="needs the cluster extra (dask[distributed])")

@@ -6,12 +6,12 @@ from __future__ import annotations
 import json
 
 import pytest
-from conftest import BASE_RECORD, REPO, SAMPLE_SITES
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 from typer.testing import CliRunner
 
 from exposure.cli import app
+from tests.helpers import BASE_RECORD, REPO, SAMPLE_SITES
 
 runner = CliRunner()
 

@@ -24,6 +24,8 @@ __all__ = [
     "overlap_m2",
     "nearest_inside",
     "distance_xy",
+    "clip_to_box",
+    "points_inside",
 ]
 
 Ring = Sequence[Sequence[float]]
@@ -116,3 +118,29 @@ def nearest_inside(polygon: shapely.Polygon, x: float, y: float, inset_m: float 
 def distance_xy(polygon: shapely.Polygon, x: float, y: float) -> float:
     """Horizontal distance from (x, y) to the polygon [m]; 0 inside it."""
     return float(polygon.distance(shapely.Point(x, y)))
+
+
+def clip_to_box(
+    polygon: shapely.Polygon, box: tuple[tuple[float, float], tuple[float, float]]
+) -> shapely.Polygon | None:
+    """The largest part of a polygon inside the rectangle ``((x0, x1), (y0, y1))``, or None."""
+    (x0, x1), (y0, y1) = box
+    clipped = shapely.clip_by_rect(polygon, x0, y0, x1, y1)
+    parts = [g for g in getattr(clipped, "geoms", [clipped]) if isinstance(g, shapely.Polygon) and g.area > 1e-9]
+    return max(parts, key=lambda g: g.area) if parts else None
+
+
+def points_inside(polygon: shapely.Polygon, per_side: int = 41) -> list[tuple[float, float]]:
+    """Points of a grid over the polygon's bounds that lie in it, farthest from its edges (holes'
+    edges included) first; the representative point where the grid misses a thin polygon."""
+    x0, y0, x1, y1 = polygon.bounds
+    gx, gy = np.meshgrid(np.linspace(x0, x1, per_side), np.linspace(y0, y1, per_side))
+    x, y = gx.ravel(), gy.ravel()
+    inside = contains(polygon, x, y)
+    if not inside.any():
+        point = polygon.representative_point()
+        return [(point.x, point.y)]
+    x, y = x[inside], y[inside]
+    clearance = shapely.distance(polygon.boundary, shapely.points(x, y))
+    order = np.argsort(-clearance, kind="stable")
+    return [(float(x[i]), float(y[i])) for i in order]

@@ -9,32 +9,7 @@ import textwrap
 
 import numpy as np
 
-
-def _clearance(points: np.ndarray, poly: np.ndarray) -> np.ndarray:
-    """Distance from each point to the nearest edge of a polygon [m]."""
-    a, b = poly, np.roll(poly, -1, axis=0)
-    ab = b - a
-    length2 = np.maximum((ab**2).sum(axis=1), 1e-12)
-    rel = points[:, None, :] - a[None, :, :]
-    t = np.clip((rel * ab[None]).sum(axis=2) / length2[None], 0, 1)
-    nearest = a[None] + t[..., None] * ab[None]
-    return np.sqrt(((points[:, None, :] - nearest) ** 2).sum(axis=2)).min(axis=1)
-
-
-def _inside_points(outline) -> list[tuple[float, float]]:
-    """Candidate label points inside a polygon, farthest from its edges first."""
-    from matplotlib.path import Path
-
-    poly = np.asarray(outline, dtype=float)
-    xs = np.linspace(poly[:, 0].min(), poly[:, 0].max(), 41)
-    ys = np.linspace(poly[:, 1].min(), poly[:, 1].max(), 41)
-    gx, gy = np.meshgrid(xs, ys)
-    candidates = np.column_stack([gx.ravel(), gy.ravel()])
-    inside = candidates[Path(poly).contains_points(candidates)]
-    if inside.size == 0:
-        return [(float(poly[:, 0].mean()), float(poly[:, 1].mean()))]
-    order = np.argsort(-_clearance(inside, poly), kind="stable")
-    return [(float(inside[i, 0]), float(inside[i, 1])) for i in order]
+from exposure.geometry import clip_to_box, contains, points_inside, surface_polygon
 
 
 class Labels:
@@ -139,53 +114,24 @@ def work_labels(assessment, labels: Labels, base: float, region=None) -> list[tu
     return placed
 
 
-def _clip_to_box(outline, region) -> list[tuple[float, float]]:
-    """The part of a polygon inside a rectangle (Sutherland–Hodgman); [] if none."""
-    points: list[tuple[float, float]] = [(float(p[0]), float(p[1])) for p in outline]
-    (xa, xb), (ya, yb) = region
-    edges = (
-        (lambda p: p[0] >= xa, lambda p, q: (xa, p[1] + (q[1] - p[1]) * (xa - p[0]) / (q[0] - p[0]))),
-        (lambda p: p[0] <= xb, lambda p, q: (xb, p[1] + (q[1] - p[1]) * (xb - p[0]) / (q[0] - p[0]))),
-        (lambda p: p[1] >= ya, lambda p, q: (p[0] + (q[0] - p[0]) * (ya - p[1]) / (q[1] - p[1]), ya)),
-        (lambda p: p[1] <= yb, lambda p, q: (p[0] + (q[0] - p[0]) * (yb - p[1]) / (q[1] - p[1]), yb)),
-    )
-    for inside, cut in edges:
-        result: list[tuple[float, float]] = []
-        for i, q in enumerate(points):
-            p = points[i - 1]
-            if inside(q):
-                if not inside(p):
-                    result.append(cut(p, q))
-                result.append(q)
-            elif inside(p):
-                result.append(cut(p, q))
-        points = result
-        if not points:
-            return []
-    return points if abs(area(points)) > 1e-9 else []
-
-
 def surface_labels(assessment, labels: Labels, region=None) -> list[tuple]:
     """Per surface: label text, its box, and an anchor on the surface for a leader (or None)."""
     placed = []
-    for s in sorted(assessment.surfaces, key=lambda s: -abs(area(s.outline))):
-        outline = s.outline if region is None else _clip_to_box(s.outline, region)
-        if not outline:
+    polygons = {s.name: surface_polygon(s.outline, s.holes) for s in assessment.surfaces}
+    for s in sorted(assessment.surfaces, key=lambda s: -polygons[s.name].area):
+        polygon = polygons[s.name] if region is None else clip_to_box(polygons[s.name], region)
+        if polygon is None:
             continue
         access = {"public": "public", "occupational": "occupational", "none": "no access"}.get(s.access, s.access)
         elevation = f", {s.elevation_m:+g} m" if s.elevation_m else ""
         label = "\n".join(textwrap.wrap(plain(s.name), 30) + [f"({access}{elevation})"])
         width, height = labels.size(label, 6.5)
-        from matplotlib.path import Path
-
-        poly = np.asarray(outline, dtype=float)
-        path = Path(poly)
-        candidates = _inside_points(outline)
+        candidates = points_inside(polygon)
         inside = False
         for cx, cy in candidates:
             box = _box_at(cx, cy, width, height, "center", "center")
-            corners = np.array([[box[0], box[1]], [box[2], box[1]], [box[2], box[3]], [box[0], box[3]]])
-            if path.contains_points(corners).all() and labels.free(box):
+            corners_x, corners_y = [box[0], box[2], box[2], box[0]], [box[1], box[1], box[3], box[3]]
+            if contains(polygon, corners_x, corners_y).all() and labels.free(box):
                 inside = True
                 break
         anchor = None
@@ -193,13 +139,9 @@ def surface_labels(assessment, labels: Labels, region=None) -> list[tuple]:
             cx, cy = candidates[0]
             anchor = (cx, cy)
             gap = 1.2 * height
-            for at in (
-                (cx, poly[:, 1].max() + gap),
-                (cx, poly[:, 1].min() - gap),
-                (poly[:, 0].max() + gap + width / 2, cy),
-                (poly[:, 0].min() - gap - width / 2, cy),
-            ):
-                box = _box_at(float(at[0]), float(at[1]), width, height, "center", "center")
+            x0, y0, x1, y1 = polygon.bounds
+            for at in ((cx, y1 + gap), (cx, y0 - gap), (x1 + gap + width / 2, cy), (x0 - gap - width / 2, cy)):
+                box = _box_at(at[0], at[1], width, height, "center", "center")
                 if labels.free(box):
                     break
         labels.take(box)
@@ -212,8 +154,3 @@ def plain(value: str) -> str:
     from exposure.report.fonts import label
 
     return label(value)
-
-
-def area(outline) -> float:
-    poly = np.asarray(outline, dtype=float)
-    return 0.5 * float(np.sum(poly[:, 0] * np.roll(poly[:, 1], -1) - np.roll(poly[:, 0], -1) * poly[:, 1]))

@@ -227,7 +227,6 @@ def test_overlapping_surfaces_and_bad_holes_are_refused(tmp_path):
 def test_sample_roof_areas_match_shapely():
     """The demo roof's areas (outline less the penthouse) against shapely computed here."""
     from exposure.site import load_site as load_file
-
     from tests.helpers import REPO
 
     sample = load_file(REPO / "sample_sites" / "rooftop-larkspur.toml")

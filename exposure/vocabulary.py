@@ -55,3 +55,7 @@ VERDICT_OF_SEVERITY: dict[str, Verdict] = dict(zip(SEVERITIES, VERDICTS, strict=
 Direction = Literal["front", "back", "side", "above", "below"]
 DIRECTIONS: tuple[Direction, ...] = get_args(Direction)
 """The box boundary's directions around an emitter."""
+
+ExportFormat = Literal["geojson", "dxf", "csv", "png", "svg"]
+EXPORT_FORMATS: tuple[ExportFormat, ...] = get_args(ExportFormat)
+"""What ``exposure export`` writes, in the order it writes them."""

@@ -3,7 +3,7 @@ modules of a readable size, physics free of the input and output libraries, a qu
 
 The stage order is the flow of DEVELOPERS.md ("Data flow"): a site record becomes a ``Site``
 (site/), each emitter a prepared model (patterns/, models/), the site an ``Assessment``
-(assessment/), the assessment bytes (report/, batch/, cli/). A module may import its own
+(assessment/), the assessment bytes (report/, export/, batch/, cli/). A module may import its own
 stage and earlier ones, never a later one (a lazy import inside a function counts too).
 """
 
@@ -29,8 +29,9 @@ STAGES: tuple[tuple[str, ...], ...] = (
     ("screening",),  # 5: one emitter, no site
     ("assessment",),  # 6: Site -> Assessment
     ("report",),  # 7: Assessment -> PDF
-    ("batch",),  # 8: many sites
-    ("cli", "__main__", ""),  # 9: the commands and the package's facade (exposure/__init__.py)
+    ("export",),  # 8: Assessment -> files for drafters and GIS
+    ("batch",),  # 9: many sites
+    ("cli", "__main__", ""),  # 10: the commands and the package's facade (exposure/__init__.py)
 )
 STAGE_OF = {name: index for index, names in enumerate(STAGES) for name in names}
 

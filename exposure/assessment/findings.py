@@ -257,6 +257,8 @@ def findings(site, surfaces, work, emitters, limits, measure_above) -> list[Flag
             )
     for warning in site.warnings:
         flags.append(Flag("datasheet-check", "info", warning))
+    for warning in site.layout_warnings:
+        flags.append(Flag("layout-check", "info", warning))
     if site.table.status != "confirmed":
         flags.append(
             Flag(

@@ -7,11 +7,13 @@ part of the JSON.
 
 from __future__ import annotations
 
+import dataclasses
 from dataclasses import dataclass, field
 from typing import Any
 
 import numpy as np
 
+from exposure.site.model import Document, GeoOrigin
 from exposure.vocabulary import (
     Severity,
     Verdict,
@@ -82,6 +84,7 @@ class EmitterResult:
     transmitter_power_w: float | None = None  # per port at full output (None: given as EIRP)
     public_headroom_scale: float | None = None  # factor on this emitter's power that keeps every
     # public surface compliant with the others as they are (None: no public surface it reaches)
+    plan_azimuth_deg: float | None = None  # boresight azimuth in the plan's frame, for drawings (not in the JSON)
 
     def to_json(self) -> dict:
         return {
@@ -249,11 +252,25 @@ class Assessment:
     zones: tuple = ()  # exposure.assessment.zones.Zone, per surface and category
     signs: tuple = ()  # exposure.assessment.zones.Sign
     notes: str = ""  # the record's notes, for the worksheet (not part of the JSON)
+    plan_north_deg: float = 0.0  # azimuth of the site frame's +y axis from true north
+    origin: GeoOrigin | None = None  # WGS 84 position of the site frame's origin
+    document: Document = field(default_factory=Document)  # address, client, preparer, revision, date
+    contacts: dict[str, str] = field(default_factory=dict)  # operator -> power-down contact
     sections: tuple[Section, ...] = ()  # elevation sections, computed only when asked (not part of the JSON)
 
     def to_json(self) -> dict:
         return {
-            "site": {"id": self.site_id, "name": self.site_name},
+            "site": {
+                "id": self.site_id,
+                "name": self.site_name,
+                "plan_north_deg": self.plan_north_deg,
+                "origin": None if self.origin is None else dataclasses.asdict(self.origin),
+                "address": self.document.address,
+                "client": self.document.client,
+                "prepared_by": self.document.prepared_by,
+                "revision": self.document.revision,
+                "date": None if self.document.date is None else self.document.date.isoformat(),
+            },
             "standard": self.standard,
             "standard_title": self.standard_title,
             "standard_citation": self.standard_citation,
@@ -270,6 +287,7 @@ class Assessment:
             "verdict": self.verdict,
             "assumptions": [a.to_json() for a in self.assumptions],
             "operators": self.operators,
+            "contacts": self.contacts,
         }
 
     def surface(self, name: str) -> SurfaceResult:

@@ -153,6 +153,7 @@ def assess(
                 position_m=antenna.position_m,
                 transmitter_power_w=emitter.transmitter_power_w,
                 public_headroom_scale=None if math.isinf(public_headroom[i]) else float(public_headroom[i]),
+                plan_azimuth_deg=None if emitter.azimuth_deg is None else antenna.azimuth_deg,
             )
         )
 
@@ -192,5 +193,9 @@ def assess(
         zones=tuple(zones),
         signs=tuple(signs),
         notes=site.notes,
+        plan_north_deg=site.plan_north_deg,
+        origin=site.origin,
+        document=site.document,
+        contacts=site.contacts,
         sections=worksheet_sections(site, emitters) if sections else (),
     )

@@ -32,6 +32,7 @@ COMMAND_MODULES = (
     "probe",
     "assess",
     "report",
+    "export",
     "batch",
 )
 

@@ -19,6 +19,7 @@ from exposure.cli.common import (
     StandardOption,
     print_cautions,
 )
+from exposure.vocabulary import EXPORT_FORMATS
 
 
 def report(
@@ -38,6 +39,15 @@ def report(
     grid_m: GridOption = None,
     measure_above: MeasureAboveOption = 0.5,
     quiet: QuietOption = False,
+    export_dir: Annotated[
+        Path | None,
+        typer.Option(
+            "--export",
+            metavar="DIR",
+            help="Also write every export (GeoJSON, DXF, CSV, PNG, SVG; as `exposure export`) into DIR.",
+            show_default=False,
+        ),
+    ] = None,
 ) -> None:
     """Write the PDF compliance worksheet of a site and, beside it, the same JSON as `assess --json`."""
     from exposure.atomic import atomic_write_bytes, json_bytes, write_pair
@@ -54,7 +64,7 @@ def report(
         if any(_same_file(beside, source) for source in inputs):
             beside = pdf.with_suffix(".result.json")  # the record itself is <stem>.json: never overwrite it
         paths[:] = [pdf, beside]
-        check_output_paths(paths, inputs)
+        check_output_paths(paths + ([export_dir / "zones.geojson"] if export_dir is not None else []), inputs)
 
     site, result = run_assessment(
         site_file, standard, limits_file, grid_m, measure_above, quiet, before=check_outputs, sections=True
@@ -64,6 +74,10 @@ def report(
     write_pair(pdf_path, lambda path: atomic_write_bytes(path, pdf), json_path, json_bytes(result.to_json()))
     typer.echo(f"wrote {pdf_path}")
     typer.echo(f"wrote {json_path}")
+    if export_dir is not None:
+        from exposure.cli.export import write_and_report
+
+        write_and_report(result, export_dir, EXPORT_FORMATS)
     typer.echo(f"Verdict: {result.verdict}. {VERDICT_WORDS[result.verdict]}")
     if not quiet:
         print_cautions()

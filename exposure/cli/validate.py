@@ -56,7 +56,7 @@ def validate(
 
 
 def _summary(site, patterns: bool = False) -> dict:
-    warnings = list(site.warnings)
+    warnings = list(site.warnings) + list(site.layout_warnings)
     efficiency: dict[str, float] = {}
     if patterns:
         from exposure.patterns import check_gain_beamwidths, pattern_efficiency

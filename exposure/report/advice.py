@@ -215,6 +215,19 @@ def controls(b: Builder, a) -> None:
     ]
     if items:
         b.bullets(items)
+    operators = sorted(
+        {op for z in a.zones for op in z.power_down_operators}
+        | {op for _, w in power_down for op in w.power_down_operators}
+    )
+    if operators:
+        b.table(
+            ["Operator", "Emitters", "Power-down contact"],
+            [
+                [esc(op), esc(", ".join(a.operators.get(op, []))), esc(a.contacts.get(op, "not given in the record"))]
+                for op in operators
+            ],
+            [0.3, 0.25, 0.45],
+        )
     b.add(
         b.p(
             "Before any work inside a boundary on the map or within the distances of the boundary table, the operators of "

@@ -17,6 +17,7 @@ from __future__ import annotations
 
 import io
 import math
+from collections.abc import Callable
 from typing import Any
 
 import numpy as np
@@ -102,13 +103,36 @@ def new_figure(width_in: float, height_in: float):
     return fig
 
 
-def png(fig) -> tuple[bytes, float, float]:
-    """PNG bytes cropped to the drawing, and its width and height [in]."""
+Encoded = tuple[bytes, float, float]
+"""A figure's bytes, and its width and height [in]."""
+
+
+def png(fig, dpi: int = DPI) -> Encoded:
+    """PNG bytes cropped to the drawing, and its width and height [in]; no timestamp or version."""
     buffer = io.BytesIO()
-    fig.savefig(buffer, format="png", dpi=DPI, metadata={"Software": None}, bbox_inches="tight", pad_inches=0.03)
+    fig.savefig(buffer, format="png", dpi=dpi, metadata={"Software": None}, bbox_inches="tight", pad_inches=0.03)
     data = buffer.getvalue()
     width, height = int.from_bytes(data[16:20], "big"), int.from_bytes(data[20:24], "big")  # PNG IHDR
-    return data, width / DPI, height / DPI
+    return data, width / dpi, height / dpi
+
+
+def png_at(dpi: int) -> Callable[[Any], Encoded]:
+    """A PNG encoder at *dpi* (the exports' 300 dpi, say)."""
+    return lambda fig: png(fig, dpi)
+
+
+def svg(fig) -> Encoded:
+    """SVG bytes cropped to the drawing (text as paths, so it reads the same without our fonts),
+    with no date and element ids fixed (``svg.hashsalt``): equal drawings give equal bytes."""
+    import matplotlib
+
+    buffer = io.BytesIO()
+    with matplotlib.rc_context({"svg.hashsalt": "exposure", "svg.fonttype": "path"}):
+        fig.savefig(
+            buffer, format="svg", metadata={"Date": None, "Creator": None}, bbox_inches="tight", pad_inches=0.03
+        )
+    width, height = fig.get_size_inches()
+    return buffer.getvalue(), float(width), float(height)
 
 
 def colour_range(assessment) -> tuple[float, float]:
@@ -202,11 +226,17 @@ def scale_bar(ax, x0: float, y0: float, length: float, bar_h: float) -> None:
         ax.text(x0 + at, y0 + bar_h * 1.5, label, ha="center", va="bottom", fontsize=6.5, zorder=52)
 
 
-def north_arrow(ax, x: float, y0: float, y1: float) -> None:
+def north_arrow(ax, x: float, y0: float, y1: float, plan_north_deg: float = 0.0) -> None:
+    """True north, an arrow of length y1 - y0 centred on (x, (y0 + y1)/2): straight up where the
+    plan's +y is north, turned by -plan_north_deg where the plan is drawn rotated."""
+    half = 0.5 * (y1 - y0)
+    cx, cy = x, 0.5 * (y0 + y1)
+    angle = math.radians(-plan_north_deg)
+    dx, dy = half * math.sin(angle), half * math.cos(angle)
     ax.annotate(
         "",
-        xy=(x, y1),
-        xytext=(x, y0),
+        xy=(cx + dx, cy + dy),
+        xytext=(cx - dx, cy - dy),
         zorder=60,
         arrowprops={
             "arrowstyle": "-|>,head_width=0.35,head_length=0.8",
@@ -216,7 +246,7 @@ def north_arrow(ax, x: float, y0: float, y1: float) -> None:
             "shrinkB": 0,
         },
     )
-    ax.text(x, y0, "N", ha="center", va="top", fontsize=8.5, fontweight="bold", zorder=60)
+    ax.text(cx - dx, cy - dy, "N", ha="center", va="top", fontsize=8.5, fontweight="bold", zorder=60)
 
 
 ELEMENT_ZONE_HATCH = "////"

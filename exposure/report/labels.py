@@ -73,7 +73,7 @@ def emitter_labels(assessment, labels: Labels, base: float, region=None) -> list
                 )
             ]
         else:
-            az = math.radians(e.azimuth_deg)
+            az = math.radians(e.plan_azimuth_deg if e.plan_azimuth_deg is not None else e.azimuth_deg)
             sx, sy = math.sin(az), math.cos(az)
             ha = "left" if sx > 0.35 else ("right" if sx < -0.35 else "center")
             va = "bottom" if sy > 0.35 else ("top" if sy < -0.35 else "center")

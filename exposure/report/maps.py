@@ -6,6 +6,7 @@ The shared scale and styles are :mod:`exposure.report.figure`.
 
 from __future__ import annotations
 
+from collections.abc import Callable
 from typing import TYPE_CHECKING, Any
 
 if TYPE_CHECKING:
@@ -21,6 +22,7 @@ from exposure.report.figure import (
     ELEMENT_ZONE_COLOUR,
     ELEMENT_ZONE_HATCH,
     OCC_COLOUR,
+    Encoded,
     colour_range,
     colourbar,
     contour,
@@ -65,7 +67,13 @@ def _map_size(xlim, ylim, width_in: float, max_height_in: float) -> tuple[float,
 
 
 def plan_map(
-    assessment, *, width_in: float = 7.2, max_height_in: float = 7.9, region=None, legend: bool = True
+    assessment,
+    *,
+    width_in: float = 7.2,
+    max_height_in: float = 7.9,
+    region=None,
+    legend: bool = True,
+    encode: Callable[[Any], Encoded] = png,
 ) -> tuple[bytes, float, float, Any]:
     """The plan-view map of every surface: exposure, 100 % contours, emitters, work positions.
 
@@ -79,6 +87,10 @@ def plan_map(
         Draw only this part of the site [m] (a detail map); default the whole site.
     legend : bool
         Draw the symbol legend below the map.
+    encode : callable
+        Figure to bytes: :func:`~exposure.report.figure.png` (the worksheet's), a PNG at
+        another resolution (:func:`~exposure.report.figure.png_at`) or
+        :func:`~exposure.report.figure.svg`.
 
     Returns
     -------
@@ -91,7 +103,7 @@ def plan_map(
     from exposure.report.fonts import matplotlib_rc
 
     with matplotlib.rc_context({"hatch.linewidth": 0.45, **matplotlib_rc()}):
-        return _plan_map(assessment, width_in, max_height_in, region, legend)
+        return _plan_map(assessment, width_in, max_height_in, region, legend, encode)
 
 
 def detail_region(assessment, *, max_fraction: float = 0.4):
@@ -113,7 +125,7 @@ def detail_region(assessment, *, max_fraction: float = 0.4):
     return (cx - half, cx + half), (cy - half, cy + half)
 
 
-def _plan_map(assessment, width_in: float, max_height_in: float, region, legend: bool):
+def _plan_map(assessment, width_in: float, max_height_in: float, region, legend: bool, encode):
     from matplotlib.lines import Line2D
     from matplotlib.patches import Patch
 
@@ -275,13 +287,23 @@ def _plan_map(assessment, width_in: float, max_height_in: float, region, legend:
     ax.axhline(ylim[0] + strip, color="#a0a0a0", linewidth=0.5, zorder=41)
     length = nice_length(xlim[1] - xlim[0])
     scale_bar(ax, xlim[0] + 0.03 * (xlim[1] - xlim[0]), ylim[0] + 0.25 * strip, length, 0.14 * strip)
-    north_arrow(ax, xlim[1] - 0.04 * (xlim[1] - xlim[0]), ylim[0] + 0.3 * strip, ylim[0] + 0.9 * strip)
+    north_arrow(
+        ax,
+        xlim[1] - 0.04 * (xlim[1] - xlim[0]),
+        ylim[0] + 0.3 * strip,
+        ylim[0] + 0.9 * strip,
+        assessment.plan_north_deg,
+    )
     ax.set_xlim(*xlim)
     ax.set_ylim(*ylim)
     ax.set_aspect("equal")
     ax.set_facecolor("#f4f4f4")
-    ax.set_xlabel("x, east [m]", fontsize=7)
-    ax.set_ylabel("y, north [m]", fontsize=7)
+    if assessment.plan_north_deg:  # the plan as drawn: its axes are not east and north
+        ax.set_xlabel("x, plan [m]", fontsize=7)
+        ax.set_ylabel(f"y, plan [m]  (+y at {assessment.plan_north_deg % 360:g}° from true north)", fontsize=7)
+    else:
+        ax.set_xlabel("x, east [m]", fontsize=7)
+        ax.set_ylabel("y, north [m]", fontsize=7)
     ax.tick_params(labelsize=6.5)
     ax.grid(True, color="#c8c8c8", linewidth=0.3, zorder=0)
     if mesh is not None:
@@ -354,4 +376,4 @@ def _plan_map(assessment, width_in: float, max_height_in: float, region, legend:
             )
     if legend:
         fig.legend(handles=handles, loc="outside lower center", ncol=3, fontsize=6.5, frameon=False, handlelength=2.4)
-    return *png(fig), drawn
+    return *encode(fig), drawn

@@ -36,6 +36,16 @@ def title_block(b: Builder, a, date: _dt.date) -> None:
             f"{esc(a.standard_title)}<br/>{esc(a.standard_citation)}"
             + (f" <i>(table status: {esc(a.standard_status)})</i>" if a.standard_status != "confirmed" else ""),
         ),
+        *(
+            (label, esc(str(value)))
+            for label, value in (
+                ("Address", a.document.address),
+                ("Client", a.document.client),
+                ("Prepared by", a.document.prepared_by),
+                ("Revision", a.document.revision),
+            )
+            if value
+        ),
         ("Date of this worksheet", esc(date.isoformat())),
         (
             "Tool",
@@ -167,7 +177,7 @@ def map_page(b: Builder, a) -> None:
                 else f"Surfaces: {surfaces}. "
             )
             + "Emitter positions are centres of radiation; work "
-            "positions W1… are listed in the work-position table. Site frame: x east, y north, metres.",
+            "positions W1… are listed in the work-position table. " + text.site_frame(a.plan_north_deg),
             "caption",
         )
     )
@@ -228,7 +238,7 @@ def sections_page(b: Builder, a) -> None:
             + (
                 f"azimuth {text.angle(e.azimuth_deg)}°. "
                 if e.azimuth_deg is not None
-                else "omnidirectional: the plane runs south–north through it. "
+                else "omnidirectional: the plane runs along the y axis of the site frame through it. "
             )
             + f"Main-beam boundary: {text.distance(e.main_beam_boundary_m.get('general_public'))} m general public, "
             f"{text.distance(e.main_beam_boundary_m.get('occupational'))} m occupational (this emitter alone)."

@@ -61,7 +61,7 @@ def render_pdf(assessment: Assessment, *, date: _dt.date | None = None) -> bytes
     from reportlab.platypus import BaseDocTemplate, Frame, PageTemplate
 
     fonts.register_fonts()
-    date = date or _dt.date.today()
+    date = date or assessment.document.date or _dt.date.today()
     pagesize = page_size(assessment.standard)
     margin = 0.6 * inch
     buffer = io.BytesIO()

@@ -5,6 +5,8 @@ with the surfaces it crosses, a person at the worst standing place and the bound
 from __future__ import annotations
 
 import math
+from collections.abc import Callable
+from typing import Any
 
 import numpy as np
 
@@ -14,6 +16,7 @@ from exposure.report.figure import (
     HEAD_LINE,
     OCC_COLOUR,
     OCC_LINE,
+    Encoded,
     colour_range,
     colourbar,
     contour,
@@ -99,6 +102,7 @@ def section_figure(
     body_height_m: float,
     width_in: float = 7.2,
     max_height_in: float = 4.1,
+    encode: Callable[[Any], Encoded] = png,
 ) -> tuple[bytes, float, float, dict]:
     """An elevation section along one emitter's boresight with the 100 % contours.
 
@@ -113,6 +117,8 @@ def section_figure(
     assessment : exposure.assessment.results.Assessment
     body_height_m : float
         Height of the standing figure and of the evaluation band above each surface [m].
+    encode : callable
+        Figure to bytes (:func:`exposure.report.maps.plan_map`'s *encode*).
 
     Returns
     -------
@@ -134,10 +140,11 @@ def section_figure(
             body_height_m=body_height_m,
             width_in=width_in,
             max_height_in=max_height_in,
+            encode=encode,
         )
 
 
-def _section_figure(s_m, z_m, ratio, *, emitter, assessment, body_height_m, width_in, max_height_in):
+def _section_figure(s_m, z_m, ratio, *, emitter, assessment, body_height_m, width_in, max_height_in, encode):
     from matplotlib.lines import Line2D
 
     s_m, z_m = np.asarray(s_m, dtype=float), np.asarray(z_m, dtype=float)
@@ -173,7 +180,8 @@ def _section_figure(s_m, z_m, ratio, *, emitter, assessment, body_height_m, widt
     }
 
     azimuth = emitter.azimuth_deg if emitter.azimuth_deg is not None else 0.0
-    crossings = surfaces_along(assessment, emitter.position_m[:2], azimuth, s_m)
+    plan_azimuth = emitter.plan_azimuth_deg if emitter.plan_azimuth_deg is not None else azimuth
+    crossings = surfaces_along(assessment, emitter.position_m[:2], plan_azimuth, s_m)
     ds = float(np.median(np.diff(s_m))) if s_m.size > 1 else 0.0
     for surface, mask in crossings:
         for i, j in _runs(mask):
@@ -246,4 +254,4 @@ def _section_figure(s_m, z_m, ratio, *, emitter, assessment, body_height_m, widt
         ),
     ]
     fig.legend(handles=handles, loc="outside lower center", ncol=4, fontsize=6.5, frameon=False)
-    return *png(fig), {"exaggeration": exaggeration, "worst": worst, "drawn": drawn}
+    return *encode(fig), {"exaggeration": exaggeration, "worst": worst, "drawn": drawn}

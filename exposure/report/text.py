@@ -252,3 +252,13 @@ SIGN_OFF_TEXT = (
     "I have reviewed the inputs, method and results of this worksheet. Conclusion "
     "(circle one): accepted / accepted with the conditions below / not accepted."
 )
+
+
+def site_frame(plan_north_deg: float) -> str:
+    """How the site frame sits: the plan as typed, and where true north is on it."""
+    if not plan_north_deg:
+        return "Site frame: x east, y north, metres."
+    return (
+        f"Site frame: the plan as drawn, metres; its y axis points {number(plan_north_deg % 360.0, 4)}° "
+        "east of true north (the arrow N shows true north); azimuths are true azimuths."
+    )

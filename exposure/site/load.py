@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import hashlib
 import tomllib
+from dataclasses import replace
 from pathlib import Path
 
 from pydantic import ValidationError
@@ -23,7 +24,7 @@ from exposure.inputs import (
 )
 from exposure.site.emitters import EmitterBase
 from exposure.site.messages import format_validation_errors
-from exposure.site.model import AccessPoint, Emitter, Site, Surface, WorkPosition
+from exposure.site.model import AccessPoint, Document, Emitter, GeoOrigin, Site, Surface, WorkPosition
 from exposure.site.pattern_file import read_pattern_csv
 from exposure.site.record import SCHEMA_VERSION, SiteRecord
 
@@ -125,7 +126,7 @@ def load_site(path: str | Path, *, standard: str | None = None, limits_file: str
             except InputError as exc:
                 problems.extend(f"emitters[{i}].pattern_file: {line}" for line in exc.lines())
                 continue
-        emitters.append(_emitter(emitter, pattern))
+        emitters.append(_emitter(emitter, pattern, record.site.plan_north_deg))
     if problems:
         raise InputError(problems, src)
 
@@ -149,14 +150,23 @@ def load_site(path: str | Path, *, standard: str | None = None, limits_file: str
         grid_m=info.grid_m,
         notes=info.notes,
         warnings=tuple(record.warnings()),
+        layout_warnings=tuple(record.layout_warnings()),
+        plan_north_deg=info.plan_north_deg,
+        origin=None if info.origin is None else GeoOrigin(**info.origin.model_dump()),
+        document=Document(info.address, info.client, info.prepared_by, info.revision, info.date),
+        contacts={o.name: o.contact for o in record.operators},
     )
 
 
-def _emitter(record: EmitterBase, pattern: PatternCuts | None) -> Emitter:
+def _emitter(record: EmitterBase, pattern: PatternCuts | None, plan_north_deg: float) -> Emitter:
     """The plain emitter of a validated record entry: full-output figures, and the antenna at
-    time-averaged power."""
+    time-averaged power with its azimuth in the plan's frame (true azimuth less the azimuth of
+    the plan's +y axis)."""
+    antenna = record.to_antenna(pattern)
+    if plan_north_deg and hasattr(record, "azimuth_deg"):
+        antenna = replace(antenna, azimuth_deg=(record.azimuth_deg - plan_north_deg) % 360.0)
     return Emitter(
-        antenna=record.to_antenna(pattern),
+        antenna=antenna,
         operator=record.operator,
         net_power_w=record.net_power_w,
         eirp_w=record.eirp_full_w,

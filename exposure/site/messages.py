@@ -17,7 +17,7 @@ from exposure.site.emitters import (
     OmniEmitter,
     PanelEmitter,
 )
-from exposure.site.record import SiteInfo, SiteRecord, Surface, WorkPosition
+from exposure.site.record import AccessPoint, OperatorContact, Origin, SiteInfo, SiteRecord, Surface, WorkPosition
 from exposure.vocabulary import EMITTER_KINDS
 
 _EMITTER_MODELS: dict[str, type[BaseModel]] = {
@@ -52,11 +52,17 @@ def _model_at(loc: tuple, kind: Any) -> type[BaseModel] | None:
     head = loc[0]
     if head == "site" and len(loc) == 1:
         return SiteInfo
+    if loc == ("site", "origin"):
+        return Origin
     if len(loc) == 2 and isinstance(loc[1], int):
         if head == "surfaces":
             return Surface
         if head == "work_positions":
             return WorkPosition
+        if head == "access_points":
+            return AccessPoint
+        if head == "operators":
+            return OperatorContact
         if head == "emitters":
             return _EMITTER_MODELS.get(kind) if isinstance(kind, str) else None
     return None

@@ -12,6 +12,7 @@ any power-reduction factor), which is what the field models radiate.
 
 from __future__ import annotations
 
+import datetime
 from collections.abc import Iterator
 from dataclasses import dataclass, field, replace
 from functools import cached_property
@@ -49,7 +50,8 @@ class Emitter:
     duty_factor, power_reduction : float
         Time-averaging factors, 0..1; their product is :attr:`time_averaging_factor`.
     azimuth_deg, mech_tilt_deg, elec_tilt_deg : float or None
-        As given; None for kinds without them.
+        As given (``azimuth_deg`` a true azimuth, whatever the plan's rotation); None for kinds
+        without them.
     pattern_file : str or None
         The record's pattern file, relative to the record.
     """
@@ -150,6 +152,27 @@ class AccessPoint:
 
 
 @dataclass(frozen=True)
+class GeoOrigin:
+    """The WGS 84 position of the site frame's (0, 0, 0): latitude and longitude [deg],
+    ellipsoidal height [m]."""
+
+    latitude_deg: float
+    longitude_deg: float
+    height_m: float = 0.0
+
+
+@dataclass(frozen=True)
+class Document:
+    """Document control of a worksheet: all optional, as the record gives them."""
+
+    address: str | None = None
+    client: str | None = None
+    prepared_by: str | None = None
+    revision: str | None = None
+    date: datetime.date | None = None
+
+
+@dataclass(frozen=True)
 class Site:
     """A validated site with its limit table resolved and its pattern files read.
 
@@ -170,8 +193,19 @@ class Site:
         Map spacing [m].
     notes : str
         Free text for the worksheet.
+    plan_north_deg : float
+        Azimuth of the site frame's +y axis from true north [deg]: the plan as drawn. The
+        emitters' antennas carry plan-frame azimuths; ``Emitter.azimuth_deg`` the true one.
+    origin : GeoOrigin or None
+        Where the site frame sits on WGS 84 (exports to GIS need it).
+    document : Document
+        Address, client, preparer, revision and date.
+    contacts : dict of str to str
+        Operator -> power-down contact.
     warnings : tuple of str
         Soft findings of validation (a datasheet to check).
+    layout_warnings : tuple of str
+        Places that look mistyped (an emitter far from every surface or below its surface).
     """
 
     id: str
@@ -189,6 +223,11 @@ class Site:
     grid_m: float = 0.25
     notes: str = ""
     warnings: tuple[str, ...] = field(default=())
+    layout_warnings: tuple[str, ...] = field(default=())
+    plan_north_deg: float = 0.0
+    origin: GeoOrigin | None = None
+    document: Document = field(default_factory=Document)
+    contacts: dict[str, str] = field(default_factory=dict)
 
     @property
     def antennas(self) -> tuple[Antenna, ...]:

@@ -11,11 +11,14 @@ downstream of the loader sees these models.
 
 from __future__ import annotations
 
+import datetime
+import math
 from typing import Annotated, Literal
 
 from annotated_types import Len
 from pydantic import (
     AfterValidator,
+    BeforeValidator,
     ConfigDict,
     Field,
     StringConstraints,
@@ -46,6 +49,47 @@ from exposure.vocabulary import Access, Evaluation, Reflection, Standard
 
 SCHEMA_VERSION = 1
 
+FAR_FROM_SURFACES_M = 100.0
+"""An emitter farther than this from every surface is probably mistyped (validate warns) [m]."""
+GEO_SPAN_WARN_M = 5000.0
+"""A geo-referenced site's surfaces spanning more than this probably mix units (validate warns) [m]."""
+
+
+def _iso_date(value: object) -> object:
+    """A TOML date as it is, or a JSON string in ISO form (YYYY-MM-DD); anything else is left to
+    the strict date check."""
+    if isinstance(value, datetime.datetime):
+        raise ValueError("give a date without a time of day (YYYY-MM-DD)")
+    if not isinstance(value, str):
+        return value
+    try:
+        return datetime.date.fromisoformat(value)
+    except ValueError:
+        raise ValueError(f"{value!r} is not a date in the form YYYY-MM-DD") from None
+
+
+DocumentDate = Annotated[datetime.date, BeforeValidator(_iso_date)]
+DocumentText = Annotated[
+    str, StringConstraints(strip_whitespace=True, min_length=1, max_length=300), AfterValidator(_text_with_lines)
+]
+
+
+class Origin(Strict):
+    """``[site.origin]``: the WGS 84 position of the site frame's (0, 0, 0)."""
+
+    latitude_deg: Annotated[float, Field(ge=-90, le=90)]
+    longitude_deg: Annotated[float, Field(ge=-180, le=180)]
+    height_m: Annotated[float, Field(ge=-500, le=9000, description="Ellipsoidal height [m] (not above sea level).")] = (
+        0.0
+    )
+
+
+class OperatorContact(Strict):
+    """``[[operators]]``: whom to call to power an operator's emitters down."""
+
+    name: Name = Field(description="As in the emitters' `operator`.")
+    contact: DocumentText = Field(description="Name, phone or desk for power-down and lockout.")
+
 
 class SiteInfo(Strict):
     """The ``[site]`` table: identity and evaluation settings."""
@@ -73,6 +117,17 @@ class SiteInfo(Strict):
     notes: Annotated[str, StringConstraints(max_length=NOTES_MAX_CHARS), AfterValidator(_text_with_lines)] = Field(
         "", description=f"Free text for the worksheet, at most {NOTES_MAX_CHARS} characters."
     )
+    plan_north_deg: Annotated[float, Field(ge=-360, le=360)] = Field(
+        0.0,
+        description="Azimuth of the record's +y axis from true north, clockwise [deg]; emitters' "
+        "azimuth_deg stay true azimuths.",
+    )
+    origin: Origin | None = None
+    address: DocumentText | None = None
+    client: DocumentText | None = None
+    prepared_by: DocumentText | None = None
+    revision: Annotated[str, StringConstraints(strip_whitespace=True, min_length=1, max_length=20)] | None = None
+    date: DocumentDate | None = Field(None, description="Date of this revision (YYYY-MM-DD).")
 
 
 class Surface(Strict):
@@ -140,6 +195,7 @@ class SiteRecord(Strict):
     emitters: Annotated[list[EmitterRecord], Len(1, 500)]
     work_positions: list[WorkPosition] = []
     access_points: list[AccessPoint] = []
+    operators: list[OperatorContact] = []
 
     @model_validator(mode="after")
     def _unique_names(self):
@@ -149,6 +205,7 @@ class SiteRecord(Strict):
             ("surface name", [s.name for s in self.surfaces]),
             ("work position name", [w.name for w in self.work_positions]),
             ("access point name", [a.name for a in self.access_points]),
+            ("operator", [o.name for o in self.operators]),
         ):
             seen: set[str] = set()
             for v in values:
@@ -197,6 +254,19 @@ class SiteRecord(Strict):
         return self
 
     @model_validator(mode="after")
+    def _contacts_name_operators(self):
+        known = list(dict.fromkeys(e.operator for e in self.emitters))
+        problems = [
+            f"operators[{i}].name {o.name!r} operates no emitter of this site (known: {', '.join(map(repr, known))}); "
+            "a typo would leave an operator without its power-down contact"
+            for i, o in enumerate(self.operators)
+            if o.name not in known
+        ]
+        if problems:
+            raise ValueError("; ".join(problems))
+        return self
+
+    @model_validator(mode="after")
     def _within_grid_budget(self):
         problem = grid_budget_problem(
             [(s.name, s.outline) for s in self.surfaces], len(self.emitters), self.site.body_height_m, self.site.grid_m
@@ -216,6 +286,39 @@ class SiteRecord(Strict):
                 out.append(
                     f"emitters[{i}] ({e.id}): eirp_w without gain; near-field models take "
                     f"gain {e.peak_gain_dbi:.1f} dBi from the {'aperture' if e.kind == 'dish' else 'beamwidths'}"
+                )
+        return out
+
+    def layout_warnings(self) -> list[str]:
+        """Places that are valid but look like a unit or sign error: an emitter far from every
+        surface or below the surface it stands over; a geo-referenced site kilometres across."""
+        out = []
+        polygons = [(s, s.polygon) for s in self.surfaces]
+        for i, e in enumerate(self.emitters):
+            nearest = min(math.hypot(distance_xy(p, e.x_m, e.y_m), e.z_m - s.elevation_m) for s, p in polygons)
+            if nearest > FAR_FROM_SURFACES_M:
+                out.append(
+                    f"emitters[{i}] ({e.id}) is {nearest:,.0f} m from the nearest surface (more than "
+                    f"{FAR_FROM_SURFACES_M:g} m); check its coordinates and their units"
+                )
+            under = [
+                s
+                for s, _ in polygons
+                if e.z_m < s.elevation_m and distance_xy(surface_polygon(s.outline), e.x_m, e.y_m) == 0
+            ]
+            for s in under:
+                out.append(
+                    f"emitters[{i}] ({e.id}) at z {e.z_m:g} m is below surface {s.name!r} (elevation "
+                    f"{s.elevation_m:g} m) that it stands over; check z_m and the elevations"
+                )
+        if self.site.origin is not None:
+            xs = [p[0] for s in self.surfaces for p in s.outline]
+            ys = [p[1] for s in self.surfaces for p in s.outline]
+            span = math.hypot(max(xs) - min(xs), max(ys) - min(ys))
+            if span > GEO_SPAN_WARN_M:
+                out.append(
+                    f"surfaces span {span / 1000:,.1f} km, more than {GEO_SPAN_WARN_M / 1000:g} km for one "
+                    "geo-referenced site; check that the outlines are in metres"
                 )
         return out
 

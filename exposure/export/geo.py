@@ -128,6 +128,8 @@ class GeoFrame:
         ----------
         EPSG method 9837 through PROJ (module docstring; docs/references.md § 13).
         """
-        east, north, up = self._transformer.transform(longitude_deg, latitude_deg, height_m)
+        lon = np.asarray(longitude_deg, dtype=float)
+        height = np.broadcast_to(np.asarray(height_m, dtype=float), lon.shape)
+        east, north, up = self._transformer.transform(lon, np.asarray(latitude_deg, dtype=float), height)
         x, y = plan_to_enu(east, north, -self.plan_north_deg)
         return x, y, np.asarray(up)

@@ -129,6 +129,13 @@ def feature_collection(assessment: Assessment, drawing: Drawing, frame: GeoFrame
         "type": "FeatureCollection",
         "exposure": {
             "site": {"id": assessment.site_id, "name": assessment.site_name},
+            "document": {
+                "address": assessment.document.address,
+                "client": assessment.document.client,
+                "prepared_by": assessment.document.prepared_by,
+                "revision": assessment.document.revision,
+                "date": None if assessment.document.date is None else assessment.document.date.isoformat(),
+            },
             "standard": assessment.standard_citation,
             "input_sha256": assessment.source_sha256,
             "tool_version": assessment.tool_version,

@@ -16,8 +16,9 @@ from pathlib import Path
 import pytest
 
 PACKAGE = Path(__file__).resolve().parent.parent / "exposure"
-DOCUMENTED = ("models", "patterns", "screening", "assessment", "limits")
-"""The physics and assessment packages: every public function there carries the sections."""
+DOCUMENTED = ("models", "patterns", "screening", "assessment", "limits", "measurement", "export")
+"""The physics, assessment, measurement and export packages: every public function there carries
+the sections."""
 
 
 def public_functions():

@@ -28,10 +28,11 @@ STAGES: tuple[tuple[str, ...], ...] = (
     ("models",),  # 4: power density of one emitter
     ("screening",),  # 5: one emitter, no site
     ("assessment",),  # 6: Site -> Assessment
-    ("report",),  # 7: Assessment -> PDF
-    ("export",),  # 8: Assessment -> files for drafters and GIS
-    ("batch",),  # 9: many sites
-    ("cli", "__main__", ""),  # 10: the commands and the package's facade (exposure/__init__.py)
+    ("measurement",),  # 7: a survey against the Assessment
+    ("report",),  # 8: Assessment (and a comparison) -> PDF
+    ("export",),  # 9: Assessment -> files for drafters and GIS
+    ("batch",),  # 10: many sites
+    ("cli", "__main__", ""),  # 11: the commands and the package's facade (exposure/__init__.py)
 )
 STAGE_OF = {name: index for index, names in enumerate(STAGES) for name in names}
 

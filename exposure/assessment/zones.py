@@ -427,3 +427,33 @@ def signs_for(zones: Sequence[Zone], access_points, surfaces_elevation: dict[str
                     )
                 )
     return signs
+
+
+EDGE_TOLERANCE_M = 0.01
+"""A zone's outline within this of its surface's edge (or a hole's) runs along a parapet or a
+wall and needs no barrier there [m]."""
+
+
+def barrier_line(zone: Zone, surface: shapely.Polygon) -> shapely.MultiLineString | None:
+    """Where a zone's edge crosses open floor: the line a barrier or a marking follows.
+
+    Parameters
+    ----------
+    zone : Zone
+    surface : shapely.Polygon
+        The zone's surface with its holes.
+
+    Returns
+    -------
+    shapely.MultiLineString or None
+        The zone's outline less the parts within :data:`EDGE_TOLERANCE_M` of the surface's
+        outline and holes; None where the zone is bounded by them alone.
+
+    References
+    ----------
+    47 CFR § 1.1307(b) (access control at the boundary of categories 2 to 4; docs/references.md
+    § 10); plan geometry by shapely.
+    """
+    line = shapely.line_merge(zone.polygon.boundary.difference(surface.boundary.buffer(EDGE_TOLERANCE_M)))
+    parts = [g for g in getattr(line, "geoms", [line]) if isinstance(g, shapely.LineString) and g.length > 0]
+    return shapely.MultiLineString(parts) if parts else None

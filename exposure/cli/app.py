@@ -33,6 +33,7 @@ COMMAND_MODULES = (
     "assess",
     "report",
     "export",
+    "survey",
     "batch",
 )
 

@@ -45,6 +45,11 @@ def export_files(assessment: Assessment, formats: tuple[str, ...] = FORMATS) -> 
     ------
     InputError
         An unknown format, or GeoJSON alone for a site without ``[site.origin]``.
+
+    References
+    ----------
+    The formats' own references: RFC 7946 (GeoJSON), the DXF reference (ezdxf), the worksheet's
+    figures (:mod:`exposure.report`).
     """
     unknown = [f for f in formats if f not in FORMATS]
     if unknown:
@@ -102,6 +107,10 @@ def write_export(
         The files written, in order.
     notes : list of str
         As for :func:`export_files`.
+
+    References
+    ----------
+    As :func:`export_files`; atomic writing: :mod:`exposure.atomic`.
     """
     from exposure.atomic import atomic_write_bytes
 

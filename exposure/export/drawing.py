@@ -14,14 +14,10 @@ from dataclasses import dataclass
 import shapely
 
 from exposure.assessment.results import Assessment
-from exposure.assessment.zones import Sign, Zone
+from exposure.assessment.zones import Sign, Zone, barrier_line
 from exposure.geometry import surface_polygon
 
 __all__ = ["Barrier", "Drawing", "EmitterMark", "drawing_of"]
-
-EDGE_TOLERANCE_M = 0.01
-"""A zone's outline within this of its surface's edge (or a hole's) runs along a parapet or a
-wall and needs no barrier there [m]."""
 
 
 @dataclass(frozen=True)
@@ -83,17 +79,19 @@ def drawing_of(assessment: Assessment) -> Drawing:
     Returns
     -------
     Drawing
-        Its zones and signs as assessed; a barrier wherever a zone's outline is more than
-        :data:`EDGE_TOLERANCE_M` from its surface's outline and holes; every emitter.
+        Its zones and signs as assessed; a barrier wherever a zone's outline crosses open floor
+        (:func:`exposure.assessment.zones.barrier_line`); every emitter.
+
+    References
+    ----------
+    47 CFR § 1.1307(b) zones and signs (docs/references.md § 10); plan geometry by shapely.
     """
     surfaces = {s.name: surface_polygon(s.outline, s.holes) for s in assessment.surfaces}
     barriers = []
     for zone in assessment.zones:
-        edges = surfaces[zone.surface].boundary.buffer(EDGE_TOLERANCE_M)
-        line = shapely.line_merge(zone.polygon.boundary.difference(edges))
-        parts = [g for g in getattr(line, "geoms", [line]) if isinstance(g, shapely.LineString) and g.length > 0]
-        if parts:
-            barriers.append(Barrier(zone, shapely.MultiLineString(parts)))
+        line = barrier_line(zone, surfaces[zone.surface])
+        if line is not None:
+            barriers.append(Barrier(zone, line))
     emitters = tuple(
         EmitterMark(
             id=e.id,

@@ -24,6 +24,10 @@ def figures(assessment: Assessment, formats: tuple[str, ...]) -> dict[str, bytes
     Returns
     -------
     dict of str to bytes
+
+    References
+    ----------
+    The worksheet's figures (:mod:`exposure.report.maps`, :mod:`exposure.report.section_figure`).
     """
     from exposure.report.figure import png_at, svg
     from exposure.report.maps import plan_map

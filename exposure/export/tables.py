@@ -31,6 +31,10 @@ def csv_tables(assessment: Assessment) -> dict[str, bytes]:
     -------
     dict of str to bytes
         The names of :data:`TABLES`.
+
+    References
+    ----------
+    RFC 4180 (CSV); the JSON keys of shared/INTERFACE.md.
     """
     data = assessment.to_json()
     contacts = data.get("contacts", {})

@@ -168,7 +168,8 @@ def test_dxf_reads_back_with_every_layer_and_the_zone_areas(roof):
 def test_barriers_lie_on_open_floor(roof):
     """A barrier line never runs along its surface's edge (shapely): it is where a zone's outline
     crosses open floor."""
-    from exposure.export.drawing import EDGE_TOLERANCE_M, drawing_of
+    from exposure.assessment.zones import EDGE_TOLERANCE_M
+    from exposure.export.drawing import drawing_of
 
     result, _, _ = roof
     drawing = drawing_of(result)

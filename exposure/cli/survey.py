@@ -44,6 +44,16 @@ def compare(
         Path, typer.Argument(metavar="SURVEY.csv", help="The survey's readings (INTERFACE.md columns).")
     ],
     json_out: JsonOption = False,
+    output: Annotated[
+        Path | None,
+        typer.Option(
+            "--output",
+            "-o",
+            metavar="FILE.pdf",
+            help="Also write the worksheet with the appendix 'Measurement comparison' (table and scatter plot).",
+            show_default=False,
+        ),
+    ] = None,
     standard: StandardOption = None,
     limits_file: LimitsFileOption = None,
     grid_m: GridOption = None,
@@ -57,8 +67,22 @@ def compare(
 
     site = load_site(site_file, standard=standard, limits_file=limits_file)
     survey = read_survey(survey_file, site)  # a bad survey fails before the assessment runs
-    _, result = run_assessment(site_file, standard, limits_file, grid_m, 0.5, quiet or json_out)
+    if output is not None:
+        from exposure.cli.report import check_output_paths, output_path
+
+        check_output_paths([output_path(output, site.id)], [Path(site.path), Path(survey_file)])
+    _, result = run_assessment(
+        site_file, standard, limits_file, grid_m, 0.5, quiet or json_out, sections=output is not None
+    )
     comparison = compare_survey(site, result, survey)
+    if output is not None:
+        from exposure.atomic import atomic_write_bytes
+        from exposure.cli.report import output_path
+        from exposure.report import render_pdf
+
+        pdf = output_path(output, site.id)
+        atomic_write_bytes(pdf, render_pdf(result, comparison=comparison))
+        typer.echo(f"wrote {pdf}", err=json_out)
     if json_out:
         print_json(comparison.to_json())
         return

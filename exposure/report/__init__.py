@@ -16,15 +16,16 @@ from typing import TYPE_CHECKING
 
 if TYPE_CHECKING:
     from exposure.assessment.results import Assessment
+    from exposure.measurement.compare import Comparison
 
 __all__ = ["render_pdf", "write_report"]
 
 
-def render_pdf(assessment: Assessment, *, date: _dt.date | None = None) -> bytes:
+def render_pdf(assessment: Assessment, *, date: _dt.date | None = None, comparison: Comparison | None = None) -> bytes:
     """The worksheet as PDF bytes (see :func:`exposure.report.pdf.render_pdf`)."""
     from exposure.report import pdf
 
-    return pdf.render_pdf(assessment, date=date)
+    return pdf.render_pdf(assessment, date=date, comparison=comparison)
 
 
 def write_report(assessment: Assessment, path: str | Path, *, date: _dt.date | None = None) -> Path:

@@ -21,6 +21,7 @@ from exposure.report import fonts
 
 if TYPE_CHECKING:
     from exposure.assessment.results import Assessment
+    from exposure.measurement.compare import Comparison
 
 import datetime as _dt
 import io
@@ -41,7 +42,7 @@ from exposure.report.pages import (
 )
 
 
-def render_pdf(assessment: Assessment, *, date: _dt.date | None = None) -> bytes:
+def render_pdf(assessment: Assessment, *, date: _dt.date | None = None, comparison: Comparison | None = None) -> bytes:
     """Render the compliance worksheet of one assessed site.
 
     Parameters
@@ -50,7 +51,10 @@ def render_pdf(assessment: Assessment, *, date: _dt.date | None = None) -> bytes
         The result of :func:`exposure.assessment.assess`, with its sections
         (``sections=True``); one without sections gets a sections page that says so.
     date : datetime.date, optional
-        Date printed in the title block; today by default.
+        Date printed in the title block; the record's date, else today.
+    comparison : Comparison, optional
+        A survey set against this assessment (:func:`exposure.measurement.compare`): adds the
+        appendix "Measurement comparison".
 
     Returns
     -------
@@ -104,5 +108,9 @@ def render_pdf(assessment: Assessment, *, date: _dt.date | None = None) -> bytes
     method(b, assessment)
     cautions(b)
     sign_off(b)
+    if comparison is not None:
+        from exposure.report.measurement_pages import comparison_appendix
+
+        comparison_appendix(b, comparison)
     doc.build(b.story, canvasmaker=numbered_canvas(assessment.site_id))
     return buffer.getvalue()

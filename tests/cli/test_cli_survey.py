@@ -71,3 +71,19 @@ def test_a_bad_survey_exits_2_naming_row_and_column(tmp_path):
     result = run("compare", ROOF, bad)
     assert result.exit_code == 2
     assert "row 9, column value" in result.output and "Traceback" not in result.output
+
+
+def test_compare_writes_the_worksheet_with_the_measurement_appendix(tmp_path):
+    """pypdf reads the appendix: its heading, the survey's SHA-256, the loud line about P2 and the
+    scatter plot (an image on the appendix page)."""
+    from pypdf import PdfReader
+
+    out = tmp_path / "with-survey.pdf"
+    result = run("compare", ROOF, SURVEY, "-o", out, "--grid-m", "1", "-q")
+    assert result.exit_code == 0, result.output
+    reader = PdfReader(out)
+    last = reader.pages[-1]
+    text = " ".join(last.extract_text().split())
+    assert "Appendix: Measurement comparison" in text
+    assert "The model is not conservative at P2" in text
+    assert len(list(last.images)) == 1

@@ -22,8 +22,9 @@ def plan_survey(
     quiet: QuietOption = False,
 ) -> None:
     """Where to measure: each surface's predicted maximum, the main beams, access points, work
-    positions and zone edges, with the predicted value and the reason for each point (CSV)."""
-    from exposure.measurement.plan import plan_csv
+    positions and zone edges, with the predicted value and the reason for each point (CSV; with
+    -o, also GeoJSON beside it for a geo-referenced site)."""
+    from exposure.measurement.plan import plan_csv, plan_geojson
 
     site, result = run_assessment(site_file, standard, limits_file, grid_m, 0.5, quiet)
     data = plan_csv(result, site.access_points)
@@ -33,9 +34,16 @@ def plan_survey(
     from exposure.atomic import atomic_write_bytes
     from exposure.cli.report import check_output_paths
 
-    check_output_paths([output], [Path(site.path)])
+    beside = output.with_suffix(".geojson")
+    check_output_paths([output, beside], [Path(site.path)])
     atomic_write_bytes(output, data)
     typer.echo(f"wrote {output}")
+    collection = plan_geojson(result, site.access_points)
+    if collection is not None:  # a geo-referenced site: the same points for a GIS or a phone map
+        import json
+
+        atomic_write_bytes(beside, (json.dumps(collection, ensure_ascii=False, indent=1) + "\n").encode("utf-8"))
+        typer.echo(f"wrote {beside}")
 
 
 def compare(

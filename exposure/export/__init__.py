@@ -6,7 +6,7 @@
 the CSV tables (:mod:`~exposure.export.tables`) and the plan map and sections as PNG and SVG
 (:mod:`~exposure.export.figures`). :func:`write_export` renders every file in memory first and
 then writes each atomically, so a failure leaves no half-written set. The geodesy is
-:mod:`~exposure.export.geo` (PROJ), the shared description of what is drawn
+:mod:`exposure.site.geo` (PROJ), the shared description of what is drawn
 :mod:`~exposure.export.drawing`.
 """
 
@@ -68,8 +68,8 @@ def export_files(assessment: Assessment, formats: tuple[str, ...] = FORMATS) -> 
         else:
             import json
 
-            from exposure.export.geo import GeoFrame
             from exposure.export.geojson import feature_collection
+            from exposure.site.geo import GeoFrame
 
             frame = GeoFrame(assessment.origin, assessment.plan_north_deg)
             collection = feature_collection(assessment, drawing, frame)

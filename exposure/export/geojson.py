@@ -18,7 +18,7 @@ import shapely
 
 from exposure.assessment.results import Assessment
 from exposure.export.drawing import Drawing
-from exposure.export.geo import GeoFrame
+from exposure.site.geo import GeoFrame
 
 __all__ = ["DECIMALS", "feature_collection"]
 
@@ -45,7 +45,7 @@ def feature_collection(assessment: Assessment, drawing: Drawing, frame: GeoFrame
 
     References
     ----------
-    IETF RFC 7946, The GeoJSON Format (2016), §§ 3–4; the geodesy of :mod:`exposure.export.geo`.
+    IETF RFC 7946, The GeoJSON Format (2016), §§ 3–4; the geodesy of :mod:`exposure.site.geo`.
     """
     contacts = assessment.contacts
     features: list[dict[str, Any]] = []

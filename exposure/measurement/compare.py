@@ -58,6 +58,13 @@ class GroupResult:
     total_ratio: dict[str, float] = field(default_factory=dict)  # the point's, all its signals
     tier: str | None = None  # the limit the point's surface is judged by
 
+    actual_maximum: float = 1.0  # the enforced power-reduction factor applied (arrays; 1 elsewhere)
+
+    def actual_maximum_steps(self) -> list[str]:
+        if self.actual_maximum == 1.0:
+            return []
+        return [f"actual-maximum factor × {self.actual_maximum:g}, enforced at the site (record)"]
+
     @property
     def ratio_db(self) -> float:
         """Extrapolated measurement over prediction [dB]."""
@@ -78,7 +85,7 @@ class GroupResult:
             "averaging": self.averaging,
             "measured_w_m2": self.measured_w_m2,
             "extrapolated_w_m2": self.extrapolated_w_m2,
-            "extrapolation": list(first.extrapolation.steps),
+            "extrapolation": list(first.extrapolation.steps) + self.actual_maximum_steps(),
             "predicted_w_m2": self.predicted_w_m2,
             "ratio_db": None if math.isinf(self.ratio_db) else self.ratio_db,
             "uncertainty_db": self.uncertainty_db,
@@ -120,7 +127,11 @@ class Comparison:
 
     def to_json(self) -> dict[str, Any]:
         return {
-            "survey": {"file": self.survey.path.name, "sha256": self.survey.sha256},
+            "survey": {
+                "file": self.survey.path.name,
+                "sha256": self.survey.sha256,
+                "dates": [d.isoformat() for d in self.survey.dates],
+            },
             "points": [g.to_json() for g in self.groups],
             "surfaces": [s.to_json() for s in self.surfaces],
             "prediction_verdict": self.prediction_verdict,
@@ -198,7 +209,8 @@ def _group(site: Site, elevation: dict[str, float], readings: list[Reading]) -> 
     density = emitter_power_density(site, points)  # (emitters, heights)
     predicted = spatial_mean(density[chosen].sum(axis=0), heights) if chosen.any() else 0.0
     measured = spatial_mean([r.power_density_w_m2 for r in readings], heights)
-    extrapolated = spatial_mean([r.extrapolated_w_m2 for r in readings], heights)
+    actual_maximum = _actual_maximum(site, first)
+    extrapolated = spatial_mean([r.extrapolated_w_m2 for r in readings], heights) * actual_maximum
     uncertainty = max(r.uncertainty_db for r in readings)
     flags = []
     if extrapolated > predicted * 10 ** (uncertainty / 10):
@@ -217,7 +229,17 @@ def _group(site: Site, elevation: dict[str, float], readings: list[Reading]) -> 
         limit_w_m2=_limits(site, first, chosen),
         uncertainty_db=uncertainty,
         flags=tuple(flags),
+        actual_maximum=actual_maximum,
     )
+
+
+def _actual_maximum(site: Site, r: Reading) -> float:
+    """The enforced power-reduction factor of the emitter a selective reading names (the
+    actual-maximum approach of a beam-steering array), only where the record says the site
+    enforces it (``power_reduction_factor`` < 1); 1 otherwise."""
+    if r.emitter is None:
+        return 1.0
+    return next(e.power_reduction for e in site.emitters if e.id == r.emitter)
 
 
 def _with_totals(groups: list[GroupResult], tiers: dict[str, str | None]) -> list[GroupResult]:
@@ -287,7 +309,11 @@ def _decisions(site: Site, groups: list[GroupResult]) -> list[SurfaceDecision]:
 
 
 def _verdict(assessment: Assessment, decisions: list[SurfaceDecision], survey: Survey) -> tuple[str, str]:
-    cited = f"survey {survey.path.name} (SHA-256 {survey.sha256[:12]}…)"
+    days = survey.dates
+    when = (
+        "" if not days else f", taken {days[0].isoformat()}" + (f" to {days[-1].isoformat()}" if len(days) > 1 else "")
+    )
+    cited = f"survey {survey.path.name} (SHA-256 {survey.sha256[:12]}…{when})"
     failing = [d.name for d in decisions if d.decision == "not-compliant"]
     if failing:
         return "mitigation-required", f"a measurement exceeds the limit on {', '.join(failing)} ({cited})"

@@ -24,7 +24,7 @@ from exposure.geometry import surface_polygon
 from exposure.site.model import AccessPoint
 from exposure.vocabulary import ACCESS_TIER, TIERS
 
-__all__ = ["PLAN_COLUMNS", "SurveyPoint", "plan_csv", "survey_points"]
+__all__ = ["PLAN_COLUMNS", "SurveyPoint", "plan_csv", "plan_geojson", "survey_points"]
 
 PLAN_COLUMNS = (
     "point",
@@ -167,3 +167,48 @@ def plan_csv(assessment: Assessment, access_points: Sequence[AccessPoint] = ()) 
             ]
         )
     return text.getvalue().encode("utf-8")
+
+
+def plan_geojson(assessment: Assessment, access_points: Sequence[AccessPoint] = ()) -> dict | None:
+    """The survey plan as RFC 7946 GeoJSON points (WGS 84), or None for a site without an origin.
+
+    Parameters
+    ----------
+    assessment : Assessment
+    access_points : sequence of AccessPoint
+
+    Returns
+    -------
+    dict or None
+        A FeatureCollection of Points with the CSV's columns as properties (``kind`` is
+        ``survey_point``).
+
+    References
+    ----------
+    IETF RFC 7946 (2016); the geodesy of :mod:`exposure.site.geo` (EPSG method 9837 through PROJ).
+    """
+    if assessment.origin is None:
+        return None
+    from exposure.site.geo import GeoFrame
+
+    frame = GeoFrame(assessment.origin, assessment.plan_north_deg)
+    elevation = {s.name: s.elevation_m for s in assessment.surfaces}
+    features = []
+    for k, p in enumerate(survey_points(assessment, access_points), start=1):
+        lon, lat, _ = frame.to_wgs84(p.x_m, p.y_m, elevation[p.surface])
+        features.append(
+            {
+                "type": "Feature",
+                "geometry": {"type": "Point", "coordinates": [round(float(lon), 8), round(float(lat), 8)]},
+                "properties": {
+                    "kind": "survey_point",
+                    "point": f"M{k}",
+                    "x_m": p.x_m,
+                    "y_m": p.y_m,
+                    "surface": p.surface,
+                    **{f"predicted_percent_{t}": round(p.percent[t], 3) for t in TIERS},
+                    "reason": "; ".join(p.reasons),
+                },
+            }
+        )
+    return {"type": "FeatureCollection", "features": features}

@@ -4,14 +4,16 @@ Columns (shared/INTERFACE.md, Measurements): ``point``, ``x_m``, ``y_m``, ``heig
 the standing surface), ``surface``, ``method`` (``broadband`` | ``selective``), ``quantity``
 (``E`` | ``H`` | ``S``), ``value``, ``unit`` (``V/m`` | ``A/m`` | ``W/m2``), ``frequency_mhz``
 (selective) or ``band_low_mhz`` and ``band_high_mhz`` (broadband), ``emitter`` (selective,
-optional), ``uncertainty_db`` (expanded, k = 2) and ``extrapolation`` with the inputs its rule
-needs (:mod:`exposure.measurement.extrapolation`). Unknown columns are errors; every problem is
+optional), ``uncertainty_db`` (expanded, k = 2), ``extrapolation`` with the inputs its rule
+needs (:mod:`exposure.measurement.extrapolation`) and, our addition, ``date`` (YYYY-MM-DD, the day
+of the reading, cited with the survey). Unknown columns are errors; every problem is
 one line naming the row (the header is row 1) and the column; nothing is read half.
 """
 
 from __future__ import annotations
 
 import csv
+import datetime
 import hashlib
 import io
 import math
@@ -37,7 +39,7 @@ EXTRAPOLATION_INPUTS = (
     "beam_gain_ratio",
     "factor",
 )
-OPTIONAL = ("frequency_mhz", "band_low_mhz", "band_high_mhz", "emitter", "extrapolation", *EXTRAPOLATION_INPUTS)
+OPTIONAL = ("frequency_mhz", "band_low_mhz", "band_high_mhz", "emitter", "extrapolation", "date", *EXTRAPOLATION_INPUTS)
 COLUMNS: tuple[str, ...] = REQUIRED + OPTIONAL
 UNITS = {"E": "V/m", "H": "A/m", "S": "W/m2"}
 NEEDS = {
@@ -73,6 +75,7 @@ class Reading:
     frequency_mhz: float | None = None
     band_mhz: tuple[float, float] | None = None
     emitter: str | None = None
+    date: datetime.date | None = None
 
     @property
     def power_density_w_m2(self) -> float:
@@ -94,6 +97,11 @@ class Survey:
     path: Path
     sha256: str
     readings: tuple[Reading, ...]
+
+    @property
+    def dates(self) -> tuple[datetime.date, ...]:
+        """The days the readings were taken (the optional ``date`` column), earliest first."""
+        return tuple(sorted({r.date for r in self.readings if r.date is not None}))
 
 
 def read_survey(path: str | Path, site: Site) -> Survey:
@@ -221,6 +229,12 @@ def _reading(number: int, row: dict[str, str], site: Site) -> tuple[Reading | No
             problems.append(f"{where('emitter')}: a broadband reading cannot be given to one emitter")
     if emitter and emitter not in {e.id for e in site.emitters}:
         problems.append(f"{where('emitter')}: {emitter!r} is not an emitter of the site")
+    day = None
+    if row.get("date"):
+        try:
+            day = datetime.date.fromisoformat(row["date"])
+        except ValueError:
+            problems.append(f"{where('date')}: not a date in the form YYYY-MM-DD")
     rule = row.get("extrapolation") or "none"
     extrapolation = None
     if rule not in RULES:
@@ -255,6 +269,7 @@ def _reading(number: int, row: dict[str, str], site: Site) -> tuple[Reading | No
             frequency_mhz=frequency,
             band_mhz=None if method != "broadband" else (low_band or 0.0, high_band or 0.0),
             emitter=emitter,
+            date=day,
         ),
         [],
     )

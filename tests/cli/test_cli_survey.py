@@ -87,3 +87,18 @@ def test_compare_writes_the_worksheet_with_the_measurement_appendix(tmp_path):
     assert "Appendix: Measurement comparison" in text
     assert "The model is not conservative at P2" in text
     assert len(list(last.images)) == 1
+
+
+def test_plan_survey_writes_geojson_beside_the_csv_for_a_geo_referenced_site(tmp_path):
+    """RFC 7946 points read by shapely, one per CSV row, in WGS 84 ranges."""
+    from shapely.geometry import shape
+
+    out = tmp_path / "plan.csv"
+    assert run("plan-survey", ROOF, "-o", out, "--grid-m", "1", "-q").exit_code == 0
+    collection = json.loads((tmp_path / "plan.geojson").read_text(encoding="utf-8"))
+    rows = list(csv.DictReader(io.StringIO(out.read_text(encoding="utf-8"))))
+    assert len(collection["features"]) == len(rows)
+    for feature, row in zip(collection["features"], rows, strict=True):
+        point = shape(feature["geometry"])
+        assert point.geom_type == "Point" and -180 <= point.x <= 180 and -90 <= point.y <= 90
+        assert feature["properties"]["point"] == row["point"] and feature["properties"]["kind"] == "survey_point"

@@ -13,7 +13,7 @@ import math
 import numpy as np
 import pytest
 
-from exposure.export.geo import GeoFrame, plan_to_enu
+from exposure.site.geo import GeoFrame, plan_to_enu
 from exposure.site.model import GeoOrigin
 
 ORIGIN = GeoOrigin(latitude_deg=55.0, longitude_deg=5.0, height_m=200.0)

@@ -133,7 +133,7 @@ def test_the_zones_land_on_the_same_ground(both):
     import numpy as np
     from shapely.geometry import shape
 
-    from exposure.export.geo import GeoFrame
+    from exposure.site.geo import GeoFrame
 
     frame = GeoFrame(both[0].origin)
     shapes = []

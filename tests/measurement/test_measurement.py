@@ -211,3 +211,30 @@ def test_the_verdict_is_reissued_with_the_survey_cited(small_site, tmp_path):
     high = compare(small_site, flagged, survey_scaled(small_site, 1e4, {"A": (10.0, 8.0)}, tmp_path))
     assert high.verdict == "mitigation-required"
     assert {s.name: s.decision for s in high.surfaces} == {"Roof": "not-compliant"}
+
+
+def test_the_actual_maximum_factor_applies_only_where_the_record_enforces_it(write_record, tmp_path):
+    """An array assessed at 0.5 x maximum (power_reduction_factor, enforced at the site): its
+    readings extrapolate to the theoretical maximum and then take the same 0.5, said in the steps;
+    another emitter's readings do not."""
+    data = copy.deepcopy(BASE_RECORD)
+    data["site"]["grid_m"] = 0.5
+    data["emitters"][0].update(kind="array", h_scan_deg=60, v_scan_deg=10, power_reduction_factor=0.5)
+    site = load_site(write_record(data))
+    survey = survey_scaled(site, 1.0, {"A": (10.0, 5.0)}, tmp_path)
+    result = compare(site, assess(site), survey)
+    by_emitter = {g.readings[0].emitter: g for g in result.groups}
+    assert by_emitter["A1"].extrapolated_w_m2 == pytest.approx(0.5 * by_emitter["A1"].measured_w_m2)
+    assert "actual-maximum factor × 0.5" in " ".join(by_emitter["A1"].to_json()["extrapolation"])
+    assert by_emitter["D1"].extrapolated_w_m2 == pytest.approx(by_emitter["D1"].measured_w_m2)
+
+
+def test_the_survey_dates_are_cited(small_site, tmp_path):
+    survey = survey_scaled(small_site, 0.1, {"A": (5.0, 5.0)}, tmp_path)
+    dated = tmp_path / "dated.csv"
+    lines = survey.path.read_text(encoding="utf-8").splitlines()
+    dated.write_text(
+        "\n".join([lines[0] + ",date"] + [line + ",2026-11-28" for line in lines[1:]]) + "\n", encoding="utf-8"
+    )
+    result = compare(small_site, assess(small_site), read_survey(dated, small_site))
+    assert result.to_json()["survey"]["dates"] == ["2026-11-28"] and "taken 2026-11-28" in result.why

@@ -143,8 +143,7 @@ def _render(comparison) -> None:
     for g in comparison.groups:
         if "measured-above-prediction" in g.flags:
             out.print(
-                f"WARNING: at {g.point} the measurement exceeds the prediction by {g.ratio_db:.1f} dB, beyond its "
-                f"uncertainty ({g.uncertainty_db:g} dB): the model is not conservative there; find out why.",
+                f"WARNING: at {g.point} {g.shortfall()}: the model is not conservative there; find out why.",
                 markup=False,
             )
     for s in comparison.surfaces:

@@ -26,6 +26,7 @@ import numpy as np
 
 from exposure.assessment.evaluate import emitter_power_density, prepared_site
 from exposure.assessment.results import Assessment
+from exposure.errors import InputError
 from exposure.measurement.averaging import scheme_of, spatial_mean
 from exposure.measurement.survey import Reading, Survey
 from exposure.site.model import Site
@@ -64,6 +65,15 @@ class GroupResult:
         if self.actual_maximum == 1.0:
             return []
         return [f"actual-maximum factor × {self.actual_maximum:g}, enforced at the site (record)"]
+
+    def shortfall(self) -> str:
+        """In words, how far the prediction falls short of the measurement."""
+        if math.isinf(self.ratio_db):
+            return "a signal is measured where nothing is predicted (no emitter of the record at that frequency or in that band)"
+        return (
+            f"the measurement exceeds the prediction by {self.ratio_db:.1f} dB, beyond its uncertainty "
+            f"({self.uncertainty_db:g} dB)"
+        )
 
     @property
     def ratio_db(self) -> float:
@@ -188,16 +198,25 @@ def _limits(site: Site, r: Reading, chosen: np.ndarray) -> dict[str, float]:
     """The limit a reading is judged by, per tier [W/m²]: the emitter's or frequency's, or the most
     restrictive over a broadband probe's band (the band clipped to the table's range)."""
     table = site.table
-    if r.band_mhz is None:
-        if r.emitter is not None:
-            f = next(e.frequency_mhz for e, c in zip(site.emitters, chosen, strict=True) if c)
-        else:
-            f = r.frequency_mhz or 0.0
-        return {t: table.power_density_limit_w_m2(f, t) for t in TIERS}
-    low, high = r.band_mhz
-    lo, hi = max(low, table.f_min_mhz), min(high, table.f_max_mhz)
-    frequencies = np.unique(np.concatenate([np.geomspace(lo, hi, 400), [lo, hi]]))
-    return {t: min(table.power_density_limit_w_m2(float(f), t) for f in frequencies) for t in TIERS}
+    try:
+        if r.band_mhz is None:
+            if r.emitter is not None:
+                f = next(e.frequency_mhz for e, c in zip(site.emitters, chosen, strict=True) if c)
+            else:
+                f = r.frequency_mhz or 0.0
+            return {t: table.power_density_limit_w_m2(f, t) for t in TIERS}
+        low, high = r.band_mhz
+        lo, hi = max(low, table.f_min_mhz), min(high, table.f_max_mhz)
+        if lo >= hi:
+            raise InputError(
+                f"the band {low:g}–{high:g} MHz lies outside the limit table's "
+                f"{table.f_min_mhz:g}–{table.f_max_mhz:g} MHz"
+            )
+        frequencies = np.unique(np.concatenate([np.geomspace(lo, hi, 400), [lo, hi]]))
+        return {t: min(table.power_density_limit_w_m2(float(f), t) for f in frequencies) for t in TIERS}
+    except InputError as exc:
+        column = "band_low_mhz, band_high_mhz" if r.band_mhz else "frequency_mhz"
+        raise InputError([f"row {r.row}, column {column}: {p}" for p in exc.problems], str(r.source)) from None
 
 
 def _group(site: Site, elevation: dict[str, float], readings: list[Reading]) -> GroupResult:

@@ -76,6 +76,7 @@ class Reading:
     band_mhz: tuple[float, float] | None = None
     emitter: str | None = None
     date: datetime.date | None = None
+    source: str = ""  # the survey file, for messages
 
     @property
     def power_density_w_m2(self) -> float:
@@ -149,7 +150,7 @@ def read_survey(path: str | Path, site: Site) -> Survey:
             problems.append(f"row {number}: {len(cells)} cells for {len(header)} columns")
             continue
         row = {name: cell.strip() for name, cell in zip(header, cells, strict=True)}
-        reading, row_problems = _reading(number, row, site)
+        reading, row_problems = _reading(number, row, site, str(path))
         problems += row_problems
         if reading is not None:
             readings.append(reading)
@@ -160,7 +161,7 @@ def read_survey(path: str | Path, site: Site) -> Survey:
     return Survey(path, hashlib.sha256(raw).hexdigest(), tuple(readings))
 
 
-def _reading(number: int, row: dict[str, str], site: Site) -> tuple[Reading | None, list[str]]:
+def _reading(number: int, row: dict[str, str], site: Site, source: str) -> tuple[Reading | None, list[str]]:
     problems: list[str] = []
 
     def where(column: str) -> str:
@@ -270,6 +271,7 @@ def _reading(number: int, row: dict[str, str], site: Site) -> tuple[Reading | No
             band_mhz=None if method != "broadband" else (low_band or 0.0, high_band or 0.0),
             emitter=emitter,
             date=day,
+            source=source,
         ),
         [],
     )

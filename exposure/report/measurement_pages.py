@@ -157,8 +157,8 @@ def comparison_appendix(b: Builder, comparison: Comparison) -> None:
     if above:
         b.bullets(
             [
-                f"<b>The model is not conservative at {esc(g.point)}</b> ({esc(g.surface)}): the measurement exceeds the "
-                f"prediction by {g.ratio_db:.1f} dB, beyond its uncertainty of {g.uncertainty_db:g} dB. Find the cause "
+                f"<b>The model is not conservative at {esc(g.point)}</b> ({esc(g.surface)}): {esc(g.shortfall())}. "
+                "Find the cause "
                 "(an emitter missing from the record, wrong power, tilt or azimuth, a reflection) before relying on the "
                 "prediction elsewhere."
                 for g in above

@@ -122,16 +122,10 @@ def _render(comparison) -> None:
     ):
         table.add_column(col, justify="left" if col in ("point", "surface", "signal", "flags") else "right")
     for g in comparison.groups:
-        first = g.readings[0]
-        signal = (
-            f"{first.band_mhz[0]:g}–{first.band_mhz[1]:g} MHz broadband"
-            if first.band_mhz
-            else f"{first.frequency_mhz:g} MHz" + (f" {first.emitter}" if first.emitter else "")
-        )
         table.add_row(
             g.point,
             g.surface,
-            signal,
+            g.signal,
             number(g.measured_w_m2),
             number(g.extrapolated_w_m2),
             number(g.predicted_w_m2),

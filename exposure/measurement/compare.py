@@ -66,6 +66,14 @@ class GroupResult:
             return []
         return [f"actual-maximum factor × {self.actual_maximum:g}, enforced at the site (record)"]
 
+    @property
+    def signal(self) -> str:
+        """What was measured, in words: ``80–6000 MHz, broadband`` or ``739 MHz, A3``."""
+        first = self.readings[0]
+        if first.band_mhz is not None:
+            return f"{first.band_mhz[0]:g}–{first.band_mhz[1]:g} MHz, broadband"
+        return f"{first.frequency_mhz:g} MHz" + (f", {first.emitter}" if first.emitter else "")
+
     def shortfall(self) -> str:
         """In words, how far the prediction falls short of the measurement."""
         if math.isinf(self.ratio_db):

@@ -108,18 +108,12 @@ def comparison_appendix(b: Builder, comparison: Comparison) -> None:
     )
     rows = []
     for g in comparison.groups:
-        first = g.readings[0]
-        signal = (
-            f"{first.band_mhz[0]:g}–{first.band_mhz[1]:g} MHz, broadband"
-            if first.band_mhz
-            else f"{first.frequency_mhz:g} MHz" + (f", {first.emitter}" if first.emitter else "")
-        )
         governing = "not judged" if g.tier is None else text.percent(g.total_ratio[g.tier])
         rows.append(
             [
                 esc(g.point),
                 esc(g.surface),
-                esc(signal),
+                esc(g.signal),
                 esc(g.averaging),
                 text.number(g.measured_w_m2),
                 text.number(g.extrapolated_w_m2),

@@ -49,7 +49,11 @@ def plan_survey(
 def compare(
     site_file: Annotated[Path, typer.Argument(metavar="SITE", help="Site record (.toml or .json).")],
     survey_file: Annotated[
-        Path, typer.Argument(metavar="SURVEY.csv", help="The survey's readings (INTERFACE.md columns).")
+        Path,
+        typer.Argument(
+            metavar="SURVEY.csv",
+            help="The survey's readings: CSV, one reading a row (columns in the README, 'Closing the loop').",
+        ),
     ],
     json_out: JsonOption = False,
     output: Annotated[

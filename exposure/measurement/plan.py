@@ -17,6 +17,7 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 
 import numpy as np
+import shapely
 
 from exposure.assessment.results import Assessment, SurfaceResult
 from exposure.assessment.zones import barrier_line
@@ -129,9 +130,7 @@ def survey_points(assessment: Assessment, access_points: Sequence[AccessPoint] =
     return found
 
 
-def _point(x: float, y: float):
-    import shapely
-
+def _point(x: float, y: float) -> shapely.Point:
     return shapely.Point(x, y)
 
 

@@ -10,6 +10,22 @@ from pathlib import Path
 REPO = Path(__file__).resolve().parent.parent
 SAMPLE_SITES = sorted((REPO / "sample_sites").glob("*.toml"))
 
+EXPORT_FILES = frozenset(
+    {
+        "zones.geojson",
+        "site.dxf",
+        "emitters.csv",
+        "surfaces.csv",
+        "zones.csv",
+        "work_positions.csv",
+        "findings.csv",
+        "plan.png",
+        "plan.svg",
+    }
+)
+"""The files `exposure export` writes for every geo-referenced site (sections come on top),
+as shared/INTERFACE.md names them."""
+
 BASE_RECORD = {
     "schema_version": 1,
     "site": {"id": "test-site", "name": "Test roof (invented)", "standard": "fcc"},

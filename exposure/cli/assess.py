@@ -49,17 +49,21 @@ def check_grid(grid_m: float | None) -> None:
         raise InputError(f"--grid-m: {grid_m:g} m must be between {low:g} and {high:g} m")
 
 
-def run_assessment(site_file: Path, standard, limits_file, grid_m, measure_above, quiet, before=None, sections=False):
+def run_assessment(
+    site_file: Path, standard, limits_file, grid_m, measure_above, quiet, before=None, sections=False, site=None
+):
     """Load and assess one site, with a progress bar on a terminal; returns (site, result).
 
     ``before(site)``, if given, runs after loading and before the assessment (output checks);
-    ``sections`` also computes the worksheet's elevation sections.
+    ``sections`` also computes the worksheet's elevation sections; ``site``, if given, is the
+    record already loaded (it is not read again).
     """
     from exposure.assessment import assess
     from exposure.site import load_site
 
     check_grid(grid_m)
-    site = load_site(site_file, standard=standard, limits_file=limits_file)
+    if site is None:
+        site = load_site(site_file, standard=standard, limits_file=limits_file)
     if before is not None:
         before(site)
     with Progress(f"assessing {site.id}", quiet=quiet) as progress:

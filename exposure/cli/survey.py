@@ -84,7 +84,7 @@ def compare(
 
         check_output_paths([output_path(output, site.id)], [Path(site.path), Path(survey_file)])
     _, result = run_assessment(
-        site_file, standard, limits_file, grid_m, 0.5, quiet or json_out, sections=output is not None
+        site_file, standard, limits_file, grid_m, 0.5, quiet or json_out, sections=output is not None, site=site
     )
     comparison = compare_survey(site, result, survey)
     if output is not None:

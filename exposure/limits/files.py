@@ -96,9 +96,7 @@ def load_limits_file(path: str | Path) -> LimitTable:
 
     References
     ----------
-    47 CFR § 1.1310(e)(1), Table 1; ICNIRP 2020 Tables 5 and 6; ICNIRP 1998 Tables 6 and 7; Health
-    Canada Safety Code 6 (2015) — each file names its source, edition, table and status
-    (docs/references.md §§ 1, 4–6, 11).
+    As :func:`load_standard`: each file names its source, edition, table and status.
     """
     from exposure.inputs import TABLE_MAX_BYTES, read_input
 
@@ -122,9 +120,7 @@ def resolve(standard: str | None = None, limits_file: str | Path | None = None) 
 
     References
     ----------
-    47 CFR § 1.1310(e)(1), Table 1; ICNIRP 2020 Tables 5 and 6; ICNIRP 1998 Tables 6 and 7; Health
-    Canada Safety Code 6 (2015) — each file names its source, edition, table and status
-    (docs/references.md §§ 1, 4–6, 11).
+    As :func:`load_standard`: each file names its source, edition, table and status.
     """
     if limits_file is not None:
         return load_limits_file(limits_file)
@@ -146,9 +142,7 @@ def load_builtin(key: str) -> LimitTable:
 
     References
     ----------
-    47 CFR § 1.1310(e)(1), Table 1; ICNIRP 2020 Tables 5 and 6; ICNIRP 1998 Tables 6 and 7; Health
-    Canada Safety Code 6 (2015) — each file names its source, edition, table and status
-    (docs/references.md §§ 1, 4–6, 11).
+    As :func:`load_standard`: each file names its source, edition, table and status.
     """
     path = _builtin_path(key)
     table = _parse(path.read_bytes(), path)

@@ -15,16 +15,13 @@ For :math:`S(z) = a + b z` the three-point mean is :math:`a + 1.433\,b` and the 
 
 from __future__ import annotations
 
-from collections.abc import Callable, Sequence
+from collections.abc import Sequence
 
 import numpy as np
 
 __all__ = [
     "LINE_HEIGHTS_M",
-    "SCHEMES",
     "THREE_POINT_HEIGHTS_M",
-    "predicted_mean",
-    "scheme_heights",
     "scheme_of",
     "spatial_mean",
 ]
@@ -33,25 +30,6 @@ THREE_POINT_HEIGHTS_M: tuple[float, ...] = (1.1, 1.5, 1.7)
 """Heights of the three-point average [m] (in-situ practice; from memory)."""
 LINE_HEIGHTS_M: tuple[float, ...] = tuple(round(0.2 + 0.1 * k, 10) for k in range(17))
 """Samples of the vertical line 0.2–1.8 m every 0.1 m [m] (in-situ practice; from memory)."""
-SCHEMES: tuple[str, ...] = ("three-point", "line", "points")
-
-
-def scheme_heights(scheme: str) -> tuple[float, ...]:
-    """The heights a scheme samples [m].
-
-    Parameters
-    ----------
-    scheme : {"three-point", "line"}
-
-    Returns
-    -------
-    tuple of float
-
-    References
-    ----------
-    In-situ survey practice (docs/references.md § 12; from memory).
-    """
-    return {"three-point": THREE_POINT_HEIGHTS_M, "line": LINE_HEIGHTS_M}[scheme]
 
 
 def spatial_mean(values_w_m2: Sequence[float] | np.ndarray, heights_m: Sequence[float] | np.ndarray) -> float:
@@ -111,24 +89,3 @@ def scheme_of(heights_m: Sequence[float]) -> str:
     if tuple(z) == tuple(round(h, 3) for h in LINE_HEIGHTS_M):
         return "line"
     return "points"
-
-
-def predicted_mean(predict: Callable[[np.ndarray], np.ndarray], heights_m: Sequence[float]) -> float:
-    """The prediction averaged exactly as the survey averaged its readings.
-
-    Parameters
-    ----------
-    predict : callable
-        Power density [W/m²] at an array of heights above the standing surface [m].
-    heights_m : sequence of float
-
-    Returns
-    -------
-    float
-
-    References
-    ----------
-    Comparing evaluation methods under one averaging: IEC 62232 practice (docs/references.md § 12).
-    """
-    z = np.asarray(heights_m, dtype=float)
-    return spatial_mean(predict(z), z)

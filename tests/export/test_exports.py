@@ -23,7 +23,7 @@ from exposure.assessment import assess
 from exposure.export import export_files
 from exposure.export.dxf import LAYERS
 from exposure.site import load_site
-from tests.helpers import REPO
+from tests.helpers import EXPORT_FILES, REPO
 
 ROOF = REPO / "sample_sites" / "rooftop-larkspur.toml"
 GRID_M = 0.5
@@ -78,17 +78,7 @@ def positions(coordinates: list):
 
 def test_every_file_is_written(roof):
     result, files, notes = roof
-    expected = {
-        "zones.geojson",
-        "site.dxf",
-        "emitters.csv",
-        "surfaces.csv",
-        "zones.csv",
-        "work_positions.csv",
-        "findings.csv",
-        "plan.png",
-        "plan.svg",
-    }
+    expected = set(EXPORT_FILES)
     expected |= {f"section-{s.emitter_id}.{fmt}" for s in result.sections for fmt in ("png", "svg")}
     assert set(files) == expected and notes == []
 

@@ -5,13 +5,17 @@ change that is meant to change results, and say so in its commit:
 
     for s in sample_sites/*.toml; do exposure assess "$s" --json > tests/data/regression/$(basename "$s" .toml).assess.json; done
 
-Floats are compared to 12 significant digits (the last bits of BLAS sums may differ between
-processors); everything else, keys and order included, exactly; ``tool_version`` is ignored.
+The stored values come from the numpy reference models (``EXPOSURE_KERNEL=numpy``); with it,
+floats are compared to 12 significant digits (the last bits of BLAS sums may differ between
+processors). The compiled kernel (the default, exposure.models.compiled) reproduces the reference
+within 1e-6 relative, and is compared to that tolerance. Everything else, keys and order
+included, exactly; ``tool_version`` is ignored.
 """
 
 from __future__ import annotations
 
 import json
+import math
 
 import pytest
 from typer.testing import CliRunner
@@ -35,12 +39,46 @@ def normalised(text: str) -> str:
     return json.dumps(walk(json.loads(text)), indent=1, ensure_ascii=False)
 
 
+def differences(got, expected, rel: float, where: str = "") -> list[str]:
+    """Where two JSON values differ: floats beyond *rel* relative, anything else at all."""
+    if isinstance(expected, float) and isinstance(got, int | float):
+        if math.isclose(got, expected, rel_tol=rel, abs_tol=1e-12):
+            return []
+        return [f"{where}: {got!r} != {expected!r}"]
+    if isinstance(expected, dict) and isinstance(got, dict):
+        if list(got) != list(expected):
+            return [f"{where}: keys {list(got)} != {list(expected)}"]
+        return [
+            d for k in expected if k != "tool_version" for d in differences(got[k], expected[k], rel, f"{where}.{k}")
+        ]
+    if isinstance(expected, list) and isinstance(got, list):
+        if len(got) != len(expected):
+            return [f"{where}: {len(got)} items != {len(expected)}"]
+        return [
+            d
+            for i, (g, e) in enumerate(zip(got, expected, strict=True))
+            for d in differences(g, e, rel, f"{where}[{i}]")
+        ]
+    return [] if got == expected else [f"{where}: {got!r} != {expected!r}"]
+
+
 @pytest.mark.parametrize("path", SAMPLE_SITES, ids=lambda p: p.stem)
-def test_sample_site_results_are_unchanged(path):
+def test_sample_site_results_are_unchanged(path, monkeypatch):
+    monkeypatch.setenv("EXPOSURE_KERNEL", "numpy")
     result = CliRunner().invoke(app, ["assess", str(path), "--json"])
     assert result.exit_code == 0, result.output
     expected = (DATA / f"{path.stem}.assess.json").read_text(encoding="utf-8")
     assert normalised(result.stdout) == normalised(expected)
+
+
+@pytest.mark.parametrize("path", SAMPLE_SITES, ids=lambda p: p.stem)
+def test_compiled_kernel_gives_the_reference_results(path):
+    """The default (compiled) kernel: the same verdict, flags, zones and signs, every figure within
+    1e-6 relative of the numpy reference's."""
+    result = CliRunner().invoke(app, ["assess", str(path), "--json"])
+    assert result.exit_code == 0, result.output
+    expected = json.loads((DATA / f"{path.stem}.assess.json").read_text(encoding="utf-8"))
+    assert differences(json.loads(result.stdout), expected, rel=1e-6) == []
 
 
 def test_each_pattern_is_built_once_per_assessment(monkeypatch):

@@ -7,6 +7,8 @@ rule, thermal region): ``T = Σ_i S_i / S_L,i`` per tier, compliant where ``T �
 
 from __future__ import annotations
 
+import os
+from collections import OrderedDict
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 
@@ -22,6 +24,7 @@ from exposure.models import (
     power_density,
     prepare,
 )
+from exposure.models.fused import FusedKernel
 from exposure.site import Site
 from exposure.site.budget import body_sample_count
 
@@ -200,7 +203,41 @@ def reduce_over_height(values: np.ndarray, evaluation: str, axis: int = -1) -> n
     return np.tensordot(values, weights, axes=([axis], [0]))
 
 
-def emitter_power_density(site: Site, points: np.ndarray) -> np.ndarray:
+_KERNELS: OrderedDict[tuple, tuple[tuple, FusedKernel]] = OrderedDict()
+_KERNELS_KEPT = 4
+
+
+def site_kernel(site: Site) -> FusedKernel | None:
+    r"""The site's emitters packed for the compiled kernel (built once per set of emitters), or
+    None where ``EXPOSURE_KERNEL=numpy`` asks for the reference implementation.
+
+    Parameters
+    ----------
+    site : Site
+
+    Returns
+    -------
+    FusedKernel or None
+
+    References
+    ----------
+    None published: a cache of this project's (:class:`exposure.models.fused.FusedKernel`).
+    """
+    if os.environ.get("EXPOSURE_KERNEL", "compiled") == "numpy":
+        return None
+    antennas = site.antennas
+    key = (tuple(map(id, antennas)), site.ground_reflection)
+    entry = _KERNELS.get(key)
+    if entry is None:  # the entry holds the antennas: their ids stay theirs while it is kept
+        entry = (antennas, FusedKernel(antennas, site.ground_reflection))
+        _KERNELS[key] = entry
+        while len(_KERNELS) > _KERNELS_KEPT:
+            _KERNELS.popitem(last=False)
+    _KERNELS.move_to_end(key)
+    return entry[1]
+
+
+def emitter_power_density(site: Site, points: np.ndarray, evaluation: str | None = None) -> np.ndarray:
     r"""Power density of every emitter at *points* [W/m²], shape (n_emitters, *points.shape[:-1]).
 
     Parameters
@@ -208,18 +245,25 @@ def emitter_power_density(site: Site, points: np.ndarray) -> np.ndarray:
     site : Site
     points : ndarray, shape (..., 3)
         Site-frame points [m].
+    evaluation : {"peak", "spatial-average"}, optional
+        Default the site's.
 
     Returns
     -------
     ndarray, shape (emitters, ...)
-        [W/m²], the auto model of each emitter with the site's reflection and evaluation.
+        [W/m²], the auto model of each emitter with the site's reflection: the compiled kernel
+        (:class:`exposure.models.fused.FusedKernel`), or the numpy reference with
+        ``EXPOSURE_KERNEL=numpy``.
 
     References
     ----------
     As :func:`exposure.models.power_density`.
     """
+    evaluation = evaluation or site.evaluation
+    kernel = site_kernel(site)
+    if kernel is not None:
+        return kernel.density(points, evaluation)
     factor = reflection_factor(site)
-    evaluation = site.evaluation
     return np.stack([power_density(a, points, reflection=factor, evaluation=evaluation) for a in site.antennas])
 
 
@@ -423,5 +467,4 @@ def peak_density(site, points, density, evaluation: str, limits: SiteLimits):
         return None
     if evaluation == "peak":
         return density
-    factor = reflection_factor(site)
-    return np.stack([power_density(a, points, reflection=factor, evaluation="peak") for a in site.antennas])
+    return emitter_power_density(site, points, "peak")

@@ -21,7 +21,6 @@ from exposure.assessment.evaluate import (
     emitter_shares,
     peak_density,
     reduce_over_height,
-    reflection_factor,
 )
 from exposure.assessment.results import (
     SurfaceGrid,
@@ -32,7 +31,6 @@ from exposure.geometry import area_m2, contains, nearest_inside
 from exposure.limits import TIERS
 from exposure.models import (
     element_zone_distance_m,
-    power_density,
     structure_distance,
 )
 from exposure.vocabulary import ACCESS_TIER
@@ -164,7 +162,6 @@ def _evaluate_columns(
     z = surface.elevation_m + offsets
     inverse = limits.inverse
     governing = ACCESS_TIER.get(surface.access)
-    factor = reflection_factor(site)
     ratio = {tier: np.empty(len(cx)) for tier in TIERS}
     at_z = {tier: np.empty(len(cx)) for tier in TIERS}
     local_governs = {tier: np.zeros(len(cx), dtype=bool) for tier in TIERS}
@@ -178,12 +175,10 @@ def _evaluate_columns(
         points[..., 0] = cx[sl, None]
         points[..., 1] = cy[sl, None]
         points[..., 2] = z[None, :]
-        density = np.empty((n_e, n_c, n_h))
-        for i, antenna in enumerate(site.antennas):
-            density[i] = power_density(antenna, points, reflection=factor, evaluation=evaluation)
-            if progress:
-                done_total[0] += n_c * n_h
-                progress(done_total[0], done_total[1])
+        density = emitter_power_density(site, points)  # (n_e, n_c, n_h)
+        if progress:
+            done_total[0] += n_e * n_c * n_h
+            progress(done_total[0], done_total[1])
         density_peak = peak_density(site, points, density, evaluation, limits)
         for tier in TIERS:
             total, reduced, governs = combined_ratio(limits, density, density_peak, evaluation, tier)

@@ -1,9 +1,11 @@
-"""Benchmark: a whole-site assessment against a floor kernel timed in the same run.
+"""Benchmark: a whole-site assessment against two floor kernels timed in the same run.
 
 An invented 60 m × 40 m roof with 24 panels in three bands (8 masts × 3 sectors), grid
 0.25 m, body height 2 m. Prints wall time, point-emitter pairs per second, peak memory
-(tracemalloc, in a second run, and the process's peak resident size), and the ratio to the floor: numpy doing only the
-unavoidable work per point-emitter pair (one hypot, two arctan2, one exp, one division).
+(tracemalloc, in a second run, and the process's peak resident size), and the ratios to two
+floors doing only the unavoidable work per point-emitter pair (one hypot, two arctan2, one exp,
+one division): numpy's, and the same work fused and compiled with numba (timed on one core and
+on all, as ``assess`` is).
 
 Run: python tests/benchmarks/bench_assess.py [--emitters N] [--grid-m G]
 Not a test: it prints figures and asserts nothing.
@@ -13,6 +15,7 @@ from __future__ import annotations
 
 import argparse
 import json
+import math
 import os
 import platform
 import resource
@@ -21,7 +24,9 @@ import time
 import tracemalloc
 from pathlib import Path
 
+import numba
 import numpy as np
+from numba import njit, prange
 
 from exposure.assessment import assess, body_offsets, surface_cells
 from exposure.site import load_site
@@ -87,6 +92,40 @@ def floor_kernel(n_points: int, n_emitters: int, chunk: int = 1 << 18) -> float:
     return time.perf_counter() - start
 
 
+@njit(parallel=True, cache=True)
+def _fused_floor(x, y, z, ex, ey, ez, total):
+    for i in prange(x.shape[0]):
+        acc = 0.0
+        for e in range(ex.shape[0]):
+            dx, dy, dz = x[i] - ex[e], y[i] - ey[e], z[i] - ez[e]
+            horizontal = math.hypot(dx, dy)
+            phi = math.atan2(dx, dy)
+            theta = math.atan2(dz, horizontal)
+            acc += math.exp(-(phi * phi + theta * theta)) / (horizontal * horizontal + dz * dz + 1.0)
+        total[i] = acc
+
+
+def fused_floor_kernel(n_points: int, n_emitters: int) -> float:
+    """Seconds for the floor's work per pair, fused over all emitters and compiled (numba)."""
+    rng = np.random.default_rng(1)
+    x, y, z = rng.uniform(0, 60, n_points), rng.uniform(0, 40, n_points), rng.uniform(0, 2, n_points)
+    ex, ey, ez = 5.0 + np.arange(n_emitters, dtype=float), np.full(n_emitters, 6.0), np.full(n_emitters, 3.5)
+    total = np.zeros(n_points)
+    _fused_floor(x[:8], y[:8], z[:8], ex, ey, ez, total[:8])  # compile (or load) first
+    start = time.perf_counter()
+    _fused_floor(x, y, z, ex, ey, ez, total)
+    return time.perf_counter() - start
+
+
+def best_of(times: int, run) -> float:
+    best = math.inf
+    for _ in range(times):
+        start = time.perf_counter()
+        run()
+        best = min(best, time.perf_counter() - start)
+    return best
+
+
 def main() -> None:
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument("--emitters", type=int, default=24)
@@ -102,14 +141,19 @@ def main() -> None:
         n_points = int(inside.sum()) * len(body_offsets(2.0))
         pairs = n_points * args.emitters
 
-        # best of three, each assess timed next to a floor run: the machines are noisy
-        walls, floors = [], []
+        result = assess(site)  # loads (or compiles) the kernel, prepares nothing for later runs
+        # best of three, each assess timed next to the floor runs: the machines are noisy
+        walls, floors, fused, walls_1, fused_1 = [], [], [], [], []
+        threads = numba.get_num_threads()
         for _ in range(3):
-            start = time.perf_counter()
-            result = assess(site)
-            walls.append(time.perf_counter() - start)
+            walls.append(best_of(1, lambda: assess(site)))
             floors.append(floor_kernel(n_points, args.emitters))
-        wall, floor = min(walls), min(floors)
+            fused.append(fused_floor_kernel(n_points, args.emitters))
+            numba.set_num_threads(1)
+            walls_1.append(best_of(1, lambda: assess(site)))
+            fused_1.append(fused_floor_kernel(n_points, args.emitters))
+            numba.set_num_threads(threads)
+        wall, floor, fused_floor, wall_1, fused_floor_1 = (min(t) for t in (walls, floors, fused, walls_1, fused_1))
         # Memory in a second, traced run: tracemalloc slows numpy's allocations.
         tracemalloc.start()
         assess(site)
@@ -121,9 +165,15 @@ def main() -> None:
     print(
         f"roof 60 m x 40 m, grid {args.grid_m} m, {args.emitters} panels, {n_points:,} points, {pairs:,} point-emitter pairs"
     )
-    print(f"assess wall time       {wall:8.2f} s   ({pairs / wall / 1e6:.2f} M pairs/s)")
-    print(f"floor kernel           {floor:8.2f} s   ({pairs / floor / 1e6:.2f} M pairs/s)")
-    print(f"ratio to floor         {wall / floor:8.2f} x   (target <= 3; best of 3 each)")
+    print(f"assess wall time       {wall:8.2f} s   ({pairs / wall / 1e6:.2f} M pairs/s; {threads} threads)")
+    print(f"assess on one core     {wall_1:8.2f} s   ({pairs / wall_1 / 1e6:.2f} M pairs/s)")
+    print(f"numpy floor kernel     {floor:8.2f} s   ({pairs / floor / 1e6:.2f} M pairs/s)")
+    print(
+        f"fused floor kernel     {fused_floor:8.2f} s   ({pairs / fused_floor / 1e6:.2f} M pairs/s; {threads} threads)"
+    )
+    print(f"fused floor, one core  {fused_floor_1:8.2f} s   ({pairs / fused_floor_1 / 1e6:.2f} M pairs/s)")
+    print(f"ratio to numpy floor   {wall / floor:8.2f} x   (target <= 1.0; best of 3 each)")
+    print(f"ratio to fused floor   {wall_1 / fused_floor_1:8.2f} x   (one core each; target <= 2)")
     print(f"peak traced memory     {peak / 2**20:8.1f} MiB (numpy and Python allocations; target < 1024)")
     print(f"peak resident memory   {rss:8.1f} MiB (whole process, interpreter and libraries included)")
     print(

@@ -107,10 +107,21 @@ Encoded = tuple[bytes, float, float]
 """A figure's bytes, and its width and height [in]."""
 
 
-def png(fig, dpi: int = DPI) -> Encoded:
-    """PNG bytes cropped to the drawing, and its width and height [in]; no timestamp or version."""
+def png(fig, dpi: int = DPI, compress_level: int = 1) -> Encoded:
+    """PNG bytes cropped to the drawing, and its width and height [in]; no timestamp or version.
+
+    *compress_level* (zlib, 0-9): 1 for the worksheet's figures, which reportlab decodes and
+    compresses again for the PDF; :func:`png_at` (files written for people) takes 6."""
     buffer = io.BytesIO()
-    fig.savefig(buffer, format="png", dpi=dpi, metadata={"Software": None}, bbox_inches="tight", pad_inches=0.03)
+    fig.savefig(
+        buffer,
+        format="png",
+        dpi=dpi,
+        metadata={"Software": None},
+        bbox_inches="tight",
+        pad_inches=0.03,
+        pil_kwargs={"compress_level": compress_level},
+    )
     data = buffer.getvalue()
     width, height = int.from_bytes(data[16:20], "big"), int.from_bytes(data[20:24], "big")  # PNG IHDR
     return data, width / dpi, height / dpi
@@ -118,7 +129,7 @@ def png(fig, dpi: int = DPI) -> Encoded:
 
 def png_at(dpi: int) -> Callable[[Any], Encoded]:
     """A PNG encoder at *dpi* (the exports' 300 dpi, say)."""
-    return lambda fig: png(fig, dpi)
+    return lambda fig: png(fig, dpi, compress_level=6)
 
 
 def svg(fig) -> Encoded:

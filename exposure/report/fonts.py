@@ -59,9 +59,14 @@ def _characters(path: str) -> frozenset[int]:
     return frozenset(TTFontFile(path).charToGlyph)
 
 
+@functools.cache
+def _dejavu_characters() -> frozenset[int]:
+    return _characters(str(_dejavu_folder() / "DejaVuSans.ttf"))
+
+
 def covered(char: str) -> bool:
     """True where DejaVu Sans has a glyph for *char* (or it is a plain space or newline)."""
-    return char in " \n\t" or ord(char) in _characters(str(_dejavu_folder() / "DejaVuSans.ttf"))
+    return char in " \n\t" or ord(char) in _dejavu_characters()
 
 
 def _fallback(char: str) -> str | None:

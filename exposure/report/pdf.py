@@ -112,5 +112,19 @@ def render_pdf(assessment: Assessment, *, date: _dt.date | None = None, comparis
         from exposure.report.measurement_pages import comparison_appendix
 
         comparison_appendix(b, comparison)
-    doc.build(b.story, canvasmaker=numbered_canvas(assessment.site_id))
+    _build(doc, b.story, numbered_canvas(assessment.site_id))
     return buffer.getvalue()
+
+
+def _build(doc, story, canvasmaker) -> None:
+    """Build the document with its images stored as binary zlib streams: reportlab's default
+    wraps them in ASCII85, which it encodes in pure Python here (a third of a second per
+    worksheet); PDF readers take either."""
+    from reportlab import rl_config
+
+    saved = rl_config.useA85
+    rl_config.useA85 = 0
+    try:
+        doc.build(story, canvasmaker=canvasmaker)
+    finally:
+        rl_config.useA85 = saved

@@ -11,12 +11,12 @@ import numpy as np
 
 from exposure import numbers
 from exposure.antenna import Antenna
+from exposure.assessment.columns import HOT_SPOT_FROM_M
 from exposure.assessment.evaluate import SiteLimits, reflection_factor
 from exposure.assessment.results import (
     Assumption,
     Flag,
 )
-from exposure.assessment.surfaces import HOT_SPOT_FROM_M
 from exposure.geometry import distance_xy
 from exposure.models import (
     aperture,
@@ -322,7 +322,12 @@ def assumptions(site, grid_m, offsets, factor) -> list[Assumption]:
             f"Surface maps at {grid_m:g} m cell spacing (cell centres). Maxima also include hot "
             f"spots: points along each antenna's boresight from {HOT_SPOT_FROM_M:g} m (its front face) to 20 m "
             "and below antennas people can stand under, so a narrow zone is not lost between cells; areas "
-            "and boundary polygons come from the grid.",
+            "and boundary polygons come from the grid. Cells are evaluated point by point wherever a bound on "
+            "every emitter's field over the surrounding block (about 1 m, the whole body height) allows a "
+            "category level to be reached, the surface's maximum to lie there or an emitter's headroom to "
+            "shrink, and within four cells of any cell above a level; elsewhere the map shows values "
+            "interpolated from block samples, never above the bound and so below every level (areas, "
+            "zones, maxima and verdict are those of the full grid).",
         ),
         Assumption(
             "Summation",

@@ -125,7 +125,9 @@ class SurfaceGrid:
     """The evaluated map of one surface (cell centres), for plotting.
 
     ``ratio[tier]`` has shape (len(y), len(x)): the total exposure ratio (peak over the body
-    height, or its spatial average, as the site says); NaN outside the outline.
+    height, or its spatial average, as the site says); NaN outside the outline. ``exact`` says
+    which cells were evaluated point by point; the others are below every category level and
+    the surface's maximum, provably, and hold estimates for drawing (:mod:`exposure.assessment.refine`).
     """
 
     x_m: np.ndarray
@@ -133,6 +135,7 @@ class SurfaceGrid:
     ratio: dict[str, np.ndarray]
     cell_m: float
     element_zone: np.ndarray | None = None  # bool, same shape: cells whose body height reaches an element zone
+    exact: np.ndarray | None = None  # bool, same shape: cells evaluated point by point (None: all)
 
 
 @dataclass(frozen=True)

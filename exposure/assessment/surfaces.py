@@ -6,33 +6,32 @@ responsibility, headroom, zones).
 from __future__ import annotations
 
 import math
-from collections.abc import Sequence
-from dataclasses import dataclass
 from typing import cast
 
 import numpy as np
 
-from exposure.antenna import Antenna
+from exposure.assessment.columns import (
+    Columns,
+    SurfaceAccumulator,
+    element_cells,
+    evaluate_columns,
+    hot_spots,
+)
 from exposure.assessment.evaluate import (
     POINT_BUDGET,
     SiteLimits,
-    combined_ratio,
     emitter_power_density,
     emitter_shares,
     peak_density,
-    reduce_over_height,
 )
+from exposure.assessment.refine import evaluate_grid
 from exposure.assessment.results import (
     SurfaceGrid,
     SurfaceResult,
 )
 from exposure.assessment.zones import zone_polygons, zones_of_surface
-from exposure.geometry import area_m2, contains, nearest_inside
+from exposure.geometry import area_m2, contains
 from exposure.limits import TIERS
-from exposure.models import (
-    element_zone_distance_m,
-    structure_distance,
-)
 from exposure.vocabulary import ACCESS_TIER
 
 RESPONSIBILITY_SHARE = 0.05
@@ -78,189 +77,6 @@ def surface_cells(surface, grid_m: float) -> tuple[np.ndarray, np.ndarray, np.nd
     return x, y, inside
 
 
-@dataclass
-class SurfaceAccumulator:
-    """Running results over the chunks of one surface."""
-
-    exceed_share: dict[str, np.ndarray]  # tier -> max share of each emitter where T > 1
-    headroom: np.ndarray  # per emitter: power scale keeping this surface's governing T <= 1
-
-    @classmethod
-    def new(cls, n: int) -> SurfaceAccumulator:
-        return cls({t: np.zeros(n) for t in TIERS}, np.full(n, np.inf))
-
-
-@dataclass(frozen=True)
-class Columns:
-    """Totals on vertical columns of points (a person's height above surface points)."""
-
-    x: np.ndarray
-    y: np.ndarray
-    ratio: dict[str, np.ndarray]  # tier -> reduced total per column
-    at_z: dict[str, np.ndarray]  # tier -> height of the column's peak (its base for averages)
-    local_governs: dict[str, np.ndarray]  # tier -> the local criterion gives the ratio
-    shares: tuple | None = None  # (column indices above the public limit, tier -> (emitters, columns) shares)
-
-
-def element_cells(
-    antennas: Sequence[Antenna], cx: np.ndarray, cy: np.ndarray, z_low: float, z_high: float, cell_m: float
-) -> np.ndarray:
-    r"""Cells from which a person standing from z_low to z_high reaches an emitter's element zone.
-
-    Parameters
-    ----------
-    antennas : sequence of Antenna
-    cx, cy : ndarray
-        Cell centres [m].
-    z_low, z_high : float
-        Heights a standing person occupies [m].
-    cell_m : float
-        Cell side [m].
-
-    Returns
-    -------
-    ndarray of bool
-
-    Notes
-    -----
-    A cell counts where any point of its body-height column, sampled every quarter of the
-    zone's reach in height, is within the reach plus half the cell's diagonal: a zone
-    smaller than a cell is still marked (conservative).
-
-    References
-    ----------
-    The element zone of docs/references.md § 9.
-    """
-    marked = np.zeros(len(cx), dtype=bool)
-    inflate = math.sqrt(0.5) * cell_m
-    for antenna in antennas:
-        reach = element_zone_distance_m(antenna)
-        extent = reach + inflate + 0.5 * max(antenna.length_m or 0.0, antenna.diameter_m or 0.0)
-        x0, y0, z0 = antenna.position_m
-        if z_low > z0 + extent or z_high < z0 - extent:
-            continue
-        near = np.flatnonzero(np.hypot(cx - x0, cy - y0) <= extent)
-        if near.size == 0:
-            continue
-        heights = np.append(np.arange(z_low, z_high, 0.25 * reach), z_high)
-        points = np.empty((near.size, heights.size, 3))
-        points[..., 0] = cx[near, None]
-        points[..., 1] = cy[near, None]
-        points[..., 2] = heights[None, :]
-        distance = structure_distance(antenna, points)
-        marked[near] |= (distance < reach + inflate).any(axis=1)
-    return marked
-
-
-def _evaluate_columns(
-    site, surface, limits: SiteLimits, offsets, cx, cy, acc, progress=None, done_total=None
-) -> Columns:
-    """Total exposure ratio per tier over the body height above each (cx, cy), in chunks
-    of bounded size; updates the surface's shares (5 % rule) and headroom as it goes."""
-    evaluation = site.evaluation
-    n_e, n_h = len(site.antennas), len(offsets)
-    z = surface.elevation_m + offsets
-    inverse = limits.inverse
-    governing = ACCESS_TIER.get(surface.access)
-    ratio = {tier: np.empty(len(cx)) for tier in TIERS}
-    at_z = {tier: np.empty(len(cx)) for tier in TIERS}
-    local_governs = {tier: np.zeros(len(cx), dtype=bool) for tier in TIERS}
-    kept_index: list[np.ndarray] = []  # columns above the public limit: their per-emitter shares, for the zones
-    kept: dict[str, list[np.ndarray]] = {tier: [] for tier in TIERS}
-    chunk = max(1, POINT_BUDGET // (n_e * n_h))
-    for start in range(0, len(cx), chunk):
-        sl = slice(start, start + chunk)
-        n_c = len(cx[sl])
-        points = np.empty((n_c, n_h, 3))
-        points[..., 0] = cx[sl, None]
-        points[..., 1] = cy[sl, None]
-        points[..., 2] = z[None, :]
-        density = emitter_power_density(site, points)  # (n_e, n_c, n_h)
-        if progress:
-            done_total[0] += n_e * n_c * n_h
-            progress(done_total[0], done_total[1])
-        density_peak = peak_density(site, points, density, evaluation, limits)
-        for tier in TIERS:
-            total, reduced, governs = combined_ratio(limits, density, density_peak, evaluation, tier)
-            ratio[tier][sl] = reduced
-            local_governs[tier][sl] = governs
-            at_z[tier][sl] = z[np.argmax(total, axis=1)] if evaluation == "peak" else z[0]
-            exceeding = reduced > 1.0
-            if exceeding.any():
-                share = density[:, exceeding, :].max(axis=2).max(axis=1) * inverse[tier]
-                np.maximum(acc.exceed_share[tier], share, out=acc.exceed_share[tier])
-            if tier == governing and surface.access == "public":
-                _update_headroom(acc.headroom, density * inverse[tier][:, None, None], total, reduced, evaluation)
-        above = np.flatnonzero(ratio["general_public"][sl] > 1.0)
-        if above.size:
-            kept_index.append(start + above)
-            for tier in TIERS:
-                kept[tier].append(
-                    emitter_shares(
-                        limits,
-                        density[:, above],
-                        None if density_peak is None else density_peak[:, above],
-                        evaluation,
-                        tier,
-                    ).astype(np.float32)
-                )
-    shares = None
-    if kept_index:
-        shares = (np.concatenate(kept_index), {t: np.concatenate(kept[t], axis=1) for t in TIERS})
-    return Columns(cx, cy, ratio, at_z, local_governs, shares)
-
-
-HOT_SPOT_FROM_M = 0.1
-"""Nearest hot spot in front of an antenna [m]: about the depth of a panel's radome, since
-nobody stands inside the antenna itself."""
-
-
-def hot_spots(surface, antennas: Sequence[Antenna], body_height_m: float) -> tuple[np.ndarray, np.ndarray]:
-    r"""Points of a surface where an emitter's field peaks and a grid can miss it.
-
-    Parameters
-    ----------
-    surface : Surface
-    antennas : sequence of Antenna
-    body_height_m : float
-
-    Returns
-    -------
-    x, y : ndarray
-        Points on the surface [m].
-
-    Notes
-    -----
-    For each emitter: points along its boresight azimuth from ``HOT_SPOT_FROM_M`` to 20 m
-    (log-spaced), and the point of the outline nearest below it where people can stand
-    under the antenna (its lowest part above their heads), wherever they fall on the
-    surface. Evaluated besides the grid so that a narrow zone in front of or below an
-    antenna is never lost between cell centres (conservative).
-
-    References
-    ----------
-    None published: this project's guard against narrow zones between cell centres.
-    """
-    polygon = surface.polygon
-    top = surface.elevation_m + body_height_m
-    xs: list[float] = []
-    ys: list[float] = []
-    steps = np.geomspace(HOT_SPOT_FROM_M, 20.0, 48)
-    for antenna in antennas:
-        ax, ay = antenna.position_m[0], antenna.position_m[1]
-        az = math.radians(antenna.azimuth_deg)
-        xs.extend(ax + steps * math.sin(az))
-        ys.extend(ay + steps * math.cos(az))
-        half = 0.5 * ((antenna.diameter_m if antenna.kind == "dish" else antenna.length_m) or 0.0)
-        if antenna.position_m[2] - half > top:
-            nx, ny = nearest_inside(polygon, ax, ay)
-            xs.append(nx)
-            ys.append(ny)
-    x, y = np.array(xs), np.array(ys)
-    keep = contains(polygon, x, y)
-    return x[keep], y[keep]
-
-
 def evaluate_surface(site, surface, limits: SiteLimits, offsets, grid_m, progress, done_total):
     r"""Evaluate one surface: its grid, the hot spots, and the running shares and headroom.
 
@@ -293,11 +109,13 @@ def evaluate_surface(site, surface, limits: SiteLimits, offsets, grid_m, progres
     """
     x, y, inside = surface_cells(surface, grid_m)
     cell_index = np.flatnonzero(inside.ravel())
-    gx, gy = np.meshgrid(x, y)
     acc = SurfaceAccumulator.new(len(site.antennas))
-    cells = _evaluate_columns(
-        site, surface, limits, offsets, gx.ravel()[cell_index], gy.ravel()[cell_index], acc, progress, done_total
-    )
+    spots_xy = hot_spots(surface, site.antennas, site.body_height_m)
+    spots = evaluate_columns(site, surface, limits, offsets, *spots_xy, acc)
+    row, col = np.divmod(cell_index, len(x))
+    cells, exact = evaluate_grid(site, surface, limits, offsets, (x, y, row, col), spots, acc, progress, done_total)
+    evaluated = np.zeros(inside.size, dtype=bool)
+    evaluated[cell_index] = exact
     maps = {tier: np.full(inside.size, np.nan) for tier in TIERS}
     for tier in TIERS:
         maps[tier][cell_index] = cells.ratio[tier]
@@ -310,9 +128,8 @@ def evaluate_surface(site, surface, limits: SiteLimits, offsets, grid_m, progres
         ratio={t: m.reshape(inside.shape) for t, m in maps.items()},
         cell_m=grid_m,
         element_zone=element.reshape(inside.shape),
+        exact=evaluated.reshape(inside.shape),
     )
-    spots_xy = hot_spots(surface, site.antennas, site.body_height_m)
-    spots = _evaluate_columns(site, surface, limits, offsets, *spots_xy, acc)
     return grid, cells, spots, acc
 
 
@@ -386,17 +203,6 @@ def surface_zones(site, surface, grid, cells: Columns, spots: Columns, limits: S
         grid_m,
         public_parts=outer,
     )
-
-
-def _update_headroom(headroom, ratio, total, reduced, evaluation) -> None:
-    """Lower each emitter's power scale k so that T_others + k·r_i ≤ 1 wherever it
-    reaches (per point for the peak rule, per cell for the spatial average, both linear)."""
-    units_total = total if evaluation == "peak" else reduced
-    units_ratio = ratio if evaluation == "peak" else reduce_over_height(ratio, evaluation)
-    with np.errstate(divide="ignore", invalid="ignore"):
-        scale = (1.0 - (units_total[None] - units_ratio)) / units_ratio
-    scale = np.where(units_ratio > 0, scale, np.inf)
-    np.minimum(headroom, np.maximum(scale.reshape(len(headroom), -1).min(axis=1), 0.0), out=headroom)
 
 
 def _exceedance_polygons(grid: SurfaceGrid, tier: str) -> list[list[tuple[float, float]]]:

@@ -27,7 +27,7 @@ def plan_survey(
     from exposure.measurement.plan import plan_csv, plan_geojson
 
     site, result = run_assessment(site_file, standard, limits_file, grid_m, 0.5, quiet)
-    data = plan_csv(result, site.access_points)
+    data = plan_csv(result, site.access_points, site)
     if output is None:
         typer.echo(data.decode("utf-8"), nl=False)
         return
@@ -38,7 +38,7 @@ def plan_survey(
     check_output_paths([output, beside], [Path(site.path)])
     atomic_write_bytes(output, data)
     typer.echo(f"wrote {output}")
-    collection = plan_geojson(result, site.access_points)
+    collection = plan_geojson(result, site.access_points, site)
     if collection is not None:  # a geo-referenced site: the same points for a GIS or a phone map
         import json
 

@@ -19,10 +19,11 @@ from dataclasses import dataclass
 import numpy as np
 import shapely
 
+from exposure.assessment.evaluate import body_column
 from exposure.assessment.results import Assessment, SurfaceResult
 from exposure.assessment.zones import barrier_line
 from exposure.geometry import surface_polygon
-from exposure.site.model import AccessPoint
+from exposure.site.model import AccessPoint, Site
 from exposure.vocabulary import ACCESS_TIER, TIERS
 
 __all__ = ["PLAN_COLUMNS", "SurveyPoint", "plan_csv", "plan_geojson", "survey_points"]
@@ -49,17 +50,25 @@ class SurveyPoint:
     reasons: tuple[str, ...]
 
 
-def _at(surface: SurfaceResult, x: float, y: float) -> dict[str, float]:
-    """Percent of each tier's limit at the map cell nearest (x, y); NaN without a map."""
+def _at(surface: SurfaceResult, x: float, y: float, site: Site | None = None) -> dict[str, float]:
+    """Percent of each tier's limit at the map cell nearest (x, y); NaN without a map.
+
+    A cell the coarse-to-fine evaluation only estimated (:mod:`exposure.assessment.refine`) is
+    evaluated at its centre here when the *site* is given, as the grid would have."""
     grid = surface.grid
     if grid is None:
         return dict.fromkeys(TIERS, math.nan)
     i = int(np.argmin(np.abs(grid.y_m - y)))
     j = int(np.argmin(np.abs(grid.x_m - x)))
+    if site is not None and grid.exact is not None and not grid.exact[i, j]:
+        _, totals = body_column(site, float(grid.x_m[j]), float(grid.y_m[i]), surface.elevation_m)
+        return {t: 100.0 * float(totals[t]) for t in TIERS}
     return {t: 100.0 * float(grid.ratio[t][i, j]) for t in TIERS}
 
 
-def survey_points(assessment: Assessment, access_points: Sequence[AccessPoint] = ()) -> list[SurveyPoint]:
+def survey_points(
+    assessment: Assessment, access_points: Sequence[AccessPoint] = (), site: Site | None = None
+) -> list[SurveyPoint]:
     """The points to measure, in the order found (maxima, beams, access points, work positions,
     barriers), merged where within :data:`MERGE_M`.
 
@@ -68,6 +77,9 @@ def survey_points(assessment: Assessment, access_points: Sequence[AccessPoint] =
     assessment : Assessment
     access_points : sequence of AccessPoint
         The site's ways onto its surfaces (``Site.access_points``).
+    site : Site, optional
+        The assessed site: map cells the assessment only estimated are evaluated point by point
+        (without it, their estimates are read, which are below every category level).
 
     Returns
     -------
@@ -87,7 +99,9 @@ def survey_points(assessment: Assessment, access_points: Sequence[AccessPoint] =
             if p.surface == surface.name and math.hypot(p.x_m - x, p.y_m - y) < MERGE_M:
                 found[k] = SurveyPoint(p.x_m, p.y_m, p.surface, p.percent, p.reasons + (reason,))
                 return
-        found.append(SurveyPoint(round(x, 2), round(y, 2), surface.name, percent or _at(surface, x, y), (reason,)))
+        found.append(
+            SurveyPoint(round(x, 2), round(y, 2), surface.name, percent or _at(surface, x, y, site), (reason,))
+        )
 
     for s in judged:
         tier = ACCESS_TIER[s.access]
@@ -105,7 +119,7 @@ def survey_points(assessment: Assessment, access_points: Sequence[AccessPoint] =
                 continue
             tier = ACCESS_TIER[s.access]
             along = [
-                (_at(s, float(x), float(y))[tier], float(x), float(y))
+                (_at(s, float(x), float(y), site)[tier], float(x), float(y))
                 for x, y in zip(xs, ys, strict=True)
                 if polygons[s.name].covers(_point(float(x), float(y)))
             ]
@@ -134,13 +148,15 @@ def _point(x: float, y: float) -> shapely.Point:
     return shapely.Point(x, y)
 
 
-def plan_csv(assessment: Assessment, access_points: Sequence[AccessPoint] = ()) -> bytes:
+def plan_csv(assessment: Assessment, access_points: Sequence[AccessPoint] = (), site: Site | None = None) -> bytes:
     """The survey plan as CSV (shared/INTERFACE.md's columns), points labelled M1, M2, ….
 
     Parameters
     ----------
     assessment : Assessment
     access_points : sequence of AccessPoint
+    site : Site, optional
+        As for :func:`survey_points`.
 
     Returns
     -------
@@ -154,7 +170,7 @@ def plan_csv(assessment: Assessment, access_points: Sequence[AccessPoint] = ()) 
     text = io.StringIO()
     writer = csv.writer(text, lineterminator="\n")
     writer.writerow(PLAN_COLUMNS)
-    for k, p in enumerate(survey_points(assessment, access_points), start=1):
+    for k, p in enumerate(survey_points(assessment, access_points, site), start=1):
         writer.writerow(
             [
                 f"M{k}",
@@ -168,13 +184,17 @@ def plan_csv(assessment: Assessment, access_points: Sequence[AccessPoint] = ()) 
     return text.getvalue().encode("utf-8")
 
 
-def plan_geojson(assessment: Assessment, access_points: Sequence[AccessPoint] = ()) -> dict | None:
+def plan_geojson(
+    assessment: Assessment, access_points: Sequence[AccessPoint] = (), site: Site | None = None
+) -> dict | None:
     """The survey plan as RFC 7946 GeoJSON points (WGS 84), or None for a site without an origin.
 
     Parameters
     ----------
     assessment : Assessment
     access_points : sequence of AccessPoint
+    site : Site, optional
+        As for :func:`survey_points`.
 
     Returns
     -------
@@ -193,7 +213,7 @@ def plan_geojson(assessment: Assessment, access_points: Sequence[AccessPoint] = 
     frame = GeoFrame(assessment.origin, assessment.plan_north_deg)
     elevation = {s.name: s.elevation_m for s in assessment.surfaces}
     features = []
-    for k, p in enumerate(survey_points(assessment, access_points), start=1):
+    for k, p in enumerate(survey_points(assessment, access_points, site), start=1):
         lon, lat, _ = frame.to_wgs84(p.x_m, p.y_m, elevation[p.surface])
         features.append(
             {

@@ -44,8 +44,9 @@ AP_R_NF = 22
 AP_R_FF = 23
 AP_S_NF = 24
 AP_DIAMETER = 25
+GAIN_MAX = 26  # the pattern's largest relative gain (1, or above 1 for cuts that dip below 0 dB)
 # pattern parameters from here on
-P = 26
+P = 27
 PARAMS = P + 13
 
 MODEL_SPHERICAL, MODEL_SYNTHETIC, MODEL_ENDFIRE, MODEL_APERTURE = 0, 1, 2, 3

@@ -31,9 +31,9 @@ TESTS = Path(__file__).resolve().parent.parent
 
 def make_sites(folder: Path, count: int) -> list[Path]:
     """*count* invented sites, alternating between the samples, power x0.5..x2."""
-    sys.path.insert(0, str(TESTS))  # here, not at the top: pool workers re-import this file
-    from conftest import SAMPLE_SITES
-    from test_batch import variant
+    sys.path.insert(0, str(TESTS.parent))  # here, not at the top: pool workers re-import this file
+    from tests.batch.test_batch import variant
+    from tests.helpers import SAMPLE_SITES
 
     bases = [tomllib.loads(p.read_text(encoding="utf-8")) for p in SAMPLE_SITES]
     for sub in SAMPLE_SITES[0].parent.iterdir():  # the pattern files the samples name

@@ -103,8 +103,8 @@ def new_figure(width_in: float, height_in: float):
     return fig
 
 
-Encoded = tuple[bytes, float, float]
-"""A figure's bytes, and its width and height [in]."""
+Encoded = tuple[Any, float, float]
+"""A figure encoded (PNG or SVG bytes, or an image for the worksheet), and its width and height [in]."""
 
 
 def png(fig, dpi: int = DPI, compress_level: int = 1) -> Encoded:
@@ -125,6 +125,30 @@ def png(fig, dpi: int = DPI, compress_level: int = 1) -> Encoded:
     data = buffer.getvalue()
     width, height = int.from_bytes(data[16:20], "big"), int.from_bytes(data[20:24], "big")  # PNG IHDR
     return data, width / dpi, height / dpi
+
+
+def raster(fig, dpi: int = DPI, pad_inches: float = 0.03) -> Encoded:
+    """The figure drawn once, as an RGB image cropped to the drawing, and its width and height [in].
+
+    The worksheet's figures: reportlab compresses the pixels once, with no PNG encoded and
+    decoded between, and the figure is laid out and drawn once (``savefig`` with a tight box
+    draws it twice). The crop is the figure's tight box with *pad_inches* around it, as
+    :func:`png` crops.
+    """
+    import numpy as np
+    from PIL import Image
+
+    fig.set_dpi(dpi)
+    fig.canvas.draw()
+    box = fig.get_tightbbox(fig.canvas.get_renderer())
+    pixels = np.asarray(fig.canvas.buffer_rgba())
+    rows, cols = pixels.shape[:2]
+    x0 = max(0, int(np.floor((box.x0 - pad_inches) * dpi)))
+    x1 = min(cols, int(np.ceil((box.x1 + pad_inches) * dpi)))
+    y0 = max(0, int(np.floor(rows - (box.y1 + pad_inches) * dpi)))
+    y1 = min(rows, int(np.ceil(rows - (box.y0 - pad_inches) * dpi)))
+    image = Image.fromarray(np.ascontiguousarray(pixels[y0:y1, x0:x1, :3]), "RGB")
+    return image, (x1 - x0) / dpi, (y1 - y0) / dpi
 
 
 def png_at(dpi: int) -> Callable[[Any], Encoded]:

@@ -26,6 +26,27 @@ VERDICT_COLOURS = {"compliant": "#2f6b3a", "verify-by-measurement": "#8a5a00", "
 VERDICT_TINTS = {"compliant": "#eef5ef", "verify-by-measurement": "#fbf4e4", "mitigation-required": "#fbecec"}
 
 
+def picture(image, width: float, height: float):
+    """A flowable of a figure drawn by :func:`exposure.report.figure.raster` (a PIL image), centred,
+    *width* × *height* [points]; reportlab stores its pixels once, zlib-compressed."""
+    from reportlab.lib.utils import ImageReader
+    from reportlab.platypus import Flowable
+
+    class Picture(Flowable):
+        def __init__(self) -> None:
+            super().__init__()
+            self.hAlign = "CENTER"
+            self.width, self.height = width, height
+
+        def wrap(self, available_width, available_height):
+            return self.width, self.height
+
+        def draw(self) -> None:
+            self.canv.drawImage(ImageReader(image), 0, 0, self.width, self.height)
+
+    return Picture()
+
+
 def esc(value) -> str:
     """Text for Paragraph markup: ``&``, ``<`` and ``>`` escaped, nothing interpreted, and every
     script set in a font that has it (:func:`exposure.report.fonts.markup`)."""

@@ -33,7 +33,7 @@ from exposure.report.figure import (
     norm,
     north_arrow,
     percent,
-    png,
+    raster,
     scale_bar,
     surface_patch,
 )
@@ -73,7 +73,7 @@ def plan_map(
     max_height_in: float = 7.9,
     region=None,
     legend: bool = True,
-    encode: Callable[[Any], Encoded] = png,
+    encode: Callable[[Any], Encoded] = raster,
 ) -> tuple[bytes, float, float, Any]:
     """The plan-view map of every surface: exposure, 100 % contours, emitters, work positions.
 
@@ -88,7 +88,7 @@ def plan_map(
     legend : bool
         Draw the symbol legend below the map.
     encode : callable
-        Figure to bytes: :func:`~exposure.report.figure.png` (the worksheet's), a PNG at
+        Figure to bytes: :func:`~exposure.report.figure.raster` (the worksheet's image), a PNG at
         another resolution (:func:`~exposure.report.figure.png_at`) or
         :func:`~exposure.report.figure.svg`.
 

@@ -4,18 +4,18 @@ supports, and a scatter plot of prediction against measurement."""
 
 from __future__ import annotations
 
-import io
 import math
+from typing import Any
 
 from exposure.measurement.compare import Comparison
 from exposure.report import fonts, text
-from exposure.report.figure import new_figure, png
-from exposure.report.layout import Builder, esc
+from exposure.report.figure import new_figure, raster
+from exposure.report.layout import Builder, esc, picture
 
 __all__ = ["comparison_appendix", "scatter_figure"]
 
 
-def scatter_figure(comparison: Comparison, width_in: float = 5.6, height_in: float = 4.6) -> tuple[bytes, float, float]:
+def scatter_figure(comparison: Comparison, width_in: float = 5.6, height_in: float = 4.6) -> tuple[Any, float, float]:
     """Predicted against measured (extrapolated) power density, log-log, with the 1:1 line and
     the band of the survey's largest expanded uncertainty; points the model under-predicts beyond
     it drawn as red triangles and labelled.
@@ -72,7 +72,7 @@ def scatter_figure(comparison: Comparison, width_in: float = 5.6, height_in: flo
         ax.tick_params(labelsize=6.5)
         ax.grid(True, which="both", linewidth=0.3, color="#cccccc")
         ax.legend(fontsize=6.5, loc="upper left", frameon=False)
-        return png(fig)
+        return raster(fig)
 
 
 def comparison_appendix(b: Builder, comparison: Comparison) -> None:
@@ -88,7 +88,6 @@ def comparison_appendix(b: Builder, comparison: Comparison) -> None:
     None
     """
     from reportlab.lib.units import inch
-    from reportlab.platypus import Image
 
     b.heading("Appendix: Measurement comparison", new_page=True)
     survey = comparison.survey
@@ -164,7 +163,7 @@ def comparison_appendix(b: Builder, comparison: Comparison) -> None:
         [1.6, 1.2, 6.5],
     )
     data, w, h = scatter_figure(comparison)
-    b.add(Image(io.BytesIO(data), width=w * inch, height=h * inch))
+    b.add(picture(data, w * inch, h * inch))
     b.add(
         b.p(
             "Predicted against measured, log–log: points above the band are places where the model under-predicts "

@@ -5,7 +5,6 @@ and the tables of emitters, boundaries, surfaces and work positions.
 from __future__ import annotations
 
 import datetime as _dt
-import io
 from pathlib import Path
 
 from exposure._version import __version__
@@ -19,6 +18,7 @@ from exposure.report.layout import (
     Builder,
     boxed,
     esc,
+    picture,
 )
 from exposure.vocabulary import DIRECTIONS
 
@@ -153,12 +153,12 @@ def compliant_word(value: bool | None) -> str:
 
 def map_page(b: Builder, a) -> None:
     from reportlab.lib.units import inch
-    from reportlab.platypus import Image, KeepTogether, PageBreak
+    from reportlab.platypus import KeepTogether, PageBreak
 
     b.heading("Plan-view exposure map", new_page=True)
     region = maps.detail_region(a)
     png, w, h, drawn = maps.plan_map(a, width_in=b.width / inch, max_height_in=7.7)
-    b.add(Image(io.BytesIO(png), width=w * inch, height=h * inch))
+    b.add(picture(png, w * inch, h * inch))
     settings = a.settings
     rule = text.EVALUATION_NAMES.get(settings.get("evaluation"), settings.get("evaluation"))
     height = settings.get("body_height_m")
@@ -202,7 +202,7 @@ def map_page(b: Builder, a) -> None:
             KeepTogether(
                 [
                     b.p("Detail around the antennas", "h2"),
-                    Image(io.BytesIO(png), width=w * inch, height=h * inch),
+                    picture(png, w * inch, h * inch),
                     b.p(
                         f"The map above, enlarged to x {x0:.0f}…{x1:.0f} m, y {y0:.0f}…{y1:.0f} m (grid "
                         f"{text.number(settings.get('grid_m'))} m).",
@@ -215,7 +215,7 @@ def map_page(b: Builder, a) -> None:
 
 def sections_page(b: Builder, a) -> None:
     from reportlab.lib.units import inch
-    from reportlab.platypus import Image, KeepTogether
+    from reportlab.platypus import KeepTogether
 
     b.heading("Elevation sections through the strongest beams", new_page=True)
     body = a.settings.get("body_height_m", 2.0)
@@ -253,7 +253,7 @@ def sections_page(b: Builder, a) -> None:
             caption += " The plane crosses no surface people can reach."
         if facts["exaggeration"] != 1:
             caption += f" <b>Vertical scale exaggerated × {facts['exaggeration']:g}.</b>"
-        b.add(KeepTogether([Image(io.BytesIO(png), width=w * inch, height=h * inch), b.p(caption, "caption")]))
+        b.add(KeepTogether([picture(png, w * inch, h * inch), b.p(caption, "caption")]))
     if not a.sections:
         b.add(b.p("No sections were computed for this assessment (it was run without sections).", "small"))
 

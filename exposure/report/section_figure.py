@@ -23,7 +23,7 @@ from exposure.report.figure import (
     new_figure,
     norm,
     percent,
-    png,
+    raster,
 )
 
 
@@ -102,7 +102,7 @@ def section_figure(
     body_height_m: float,
     width_in: float = 7.2,
     max_height_in: float = 4.1,
-    encode: Callable[[Any], Encoded] = png,
+    encode: Callable[[Any], Encoded] = raster,
 ) -> tuple[bytes, float, float, dict]:
     """An elevation section along one emitter's boresight with the 100 % contours.
 

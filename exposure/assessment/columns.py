@@ -20,6 +20,7 @@ from exposure.assessment.evaluate import (
     emitter_shares,
     peak_density,
     reduce_over_height,
+    site_kernel,
 )
 from exposure.geometry import contains, nearest_inside
 from exposure.limits import TIERS
@@ -131,6 +132,9 @@ def evaluate_columns(
     Total exposure ratio Σ S_i/S_L,i: IEC 62232 / ITU-T K.52 practice, ICNIRP 2020 multiple-frequency
     rule (docs/references.md §§ 4, 7); the 5 % rule of 47 CFR § 1.1307(b)(3) (§ 2).
     """
+    kernel = site_kernel(site)
+    if kernel is not None:
+        return _compiled_columns(kernel, site, surface, limits, offsets, cx, cy, acc, progress, done_total)
     evaluation = site.evaluation
     n_e, n_h = len(site.antennas), len(offsets)
     z = surface.elevation_m + offsets
@@ -178,6 +182,87 @@ def evaluate_columns(
                         tier,
                     ).astype(np.float32)
                 )
+    shares = None
+    if kept_index:
+        shares = (np.concatenate(kept_index), {t: np.concatenate(kept[t], axis=1) for t in TIERS})
+    return Columns(cx, cy, ratio, at_z, local_governs, shares)
+
+
+def _compiled_columns(kernel, site, surface, limits: SiteLimits, offsets, cx, cy, acc, progress, done_total) -> Columns:
+    """:func:`evaluate_columns` through the compiled column totals (exposure.assessment.compiled_columns):
+    the same quantities, without the (emitters × columns × heights) densities."""
+    from exposure.assessment.compiled_columns import column_totals
+
+    peak = site.evaluation == "peak"
+    n_e, n_h, n = len(site.antennas), len(offsets), len(cx)
+    z = surface.elevation_m + np.asarray(offsets, dtype=float)
+    weights = np.ones(n_h)
+    weights[[0, -1]] = 0.5
+    weights /= weights.sum()
+    inverse = np.stack([limits.inverse[t] for t in TIERS])
+    has_local = limits.local is not None
+    inverse_local = np.stack([1.0 / limits.local_limit(t) for t in TIERS]) if has_local else np.zeros((2, n_e))
+    governing = ACCESS_TIER.get(surface.access)
+    public = surface.access == "public" and governing is not None
+    ratio = {t: np.empty(n) for t in TIERS}
+    at_z = {t: np.empty(n) for t in TIERS}
+    local_governs = {t: np.zeros(n, dtype=bool) for t in TIERS}
+    kept_index: list[np.ndarray] = []
+    kept: dict[str, list[np.ndarray]] = {t: [] for t in TIERS}
+    chunk = max(1, POINT_BUDGET // (4 * n_e))  # four (emitters × columns) outputs held at once
+    xs, ys = np.ascontiguousarray(cx, dtype=float), np.ascontiguousarray(cy, dtype=float)
+    for start in range(0, n, chunk):
+        sl = slice(start, min(start + chunk, n))
+        n_c = sl.stop - sl.start
+        total, local = np.empty((2, n_c)), np.empty((2, n_c))
+        at_index = np.empty((2, n_c), dtype=np.int64)
+        each_reduced, each_peak, each_local = (np.empty((n_e, n_c)) for _ in range(3))
+        headroom = np.empty((n_e, n_c) if public and peak else (1, 1))
+        args = (z, weights, inverse, inverse_local, TIERS.index(governing) if governing else 0, peak, has_local)
+        column_totals(
+            kernel.params,
+            kernel.tables,
+            xs[sl],
+            ys[sl],
+            *args,
+            public and peak,
+            total,
+            local,
+            at_index,
+            each_reduced,
+            each_peak,
+            each_local,
+            headroom,
+        )
+        if progress:
+            done_total[0] += n_e * n_c * n_h
+            progress(done_total[0], done_total[1])
+        for k, tier in enumerate(TIERS):
+            combined = np.maximum(total[k], local[k]) if has_local else total[k]
+            ratio[tier][sl] = combined
+            if has_local:
+                local_governs[tier][sl] = local[k] > total[k]
+            at_z[tier][sl] = z[at_index[k]]
+            exceeding = combined > 1.0
+            if exceeding.any():
+                share = each_peak[:, exceeding].max(axis=1) * limits.inverse[tier]
+                np.maximum(acc.exceed_share[tier], share, out=acc.exceed_share[tier])
+            if tier == governing and public:
+                if peak:
+                    scale = headroom.min(axis=1)
+                else:
+                    r = each_reduced * limits.inverse[tier][:, None]
+                    with np.errstate(divide="ignore", invalid="ignore"):
+                        scale = np.where(r > 0, (1.0 - (combined[None] - r)) / r, np.inf).min(axis=1)
+                np.minimum(acc.headroom, np.maximum(scale, 0.0), out=acc.headroom)
+        above = np.flatnonzero(ratio["general_public"][sl] > 1.0)
+        if above.size:
+            kept_index.append(start + above)
+            for k, tier in enumerate(TIERS):
+                share = each_reduced[:, above] * limits.inverse[tier][:, None]
+                if has_local:
+                    np.maximum(share, each_local[:, above] * inverse_local[k][:, None], out=share)
+                kept[tier].append(share.astype(np.float32))
     shares = None
     if kept_index:
         shares = (np.concatenate(kept_index), {t: np.concatenate(kept[t], axis=1) for t in TIERS})

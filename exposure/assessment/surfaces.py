@@ -173,10 +173,13 @@ def surface_zones(site, surface, grid, cells: Columns, spots: Columns, limits: S
             "z": np.concatenate([cells.at_z[tier][where], spots.at_z[tier][hot]]),
             "shares": np.full((n_e, len(x)), np.nan),
         }
-    if cells.shares is not None:  # the cells the map's evaluation kept
-        index, kept = cells.shares
-        position = np.full(len(cells.x), -1)
-        position[where] = np.arange(len(where))
+    # the shares the evaluations kept (cells and hot spots above the public limit)
+    for columns, chosen, first in ((cells, where, 0), (spots, np.flatnonzero(hot), len(where))):
+        if columns.shares is None:
+            continue
+        index, kept = columns.shares
+        position = np.full(len(columns.x), -1)
+        position[chosen] = first + np.arange(len(chosen))
         found = position[index] >= 0
         for tier in TIERS:
             places[tier]["shares"][:, position[index[found]]] = kept[tier][:, found]

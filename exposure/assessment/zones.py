@@ -267,13 +267,13 @@ def _greedy_power_down(shares: np.ndarray) -> list[int]:
     ``shares`` is (emitters, places) of each emitter's ratio to its own limit; their sum over
     emitters bounds the total from above (the peak of a sum is at most the sum of peaks).
     """
-    remaining = np.ones(shares.shape[0], dtype=bool)
     order = np.argsort(-shares.max(axis=1), kind="stable")
+    remaining = shares.sum(axis=0, dtype=float)  # the running sum: linear in the emitters
     off: list[int] = []
     for i in order:
-        if shares[remaining].sum(axis=0).max(initial=0.0) <= 1.0:
+        if remaining.max(initial=0.0) <= 1.0:
             break
-        remaining[i] = False
+        remaining -= shares[i]
         off.append(int(i))
     return off
 

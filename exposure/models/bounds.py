@@ -93,7 +93,7 @@ def _elevation_range(num_lo, num_hi, h_lo, h_hi):
     return low, high
 
 
-@njit(cache=True, inline="always")
+@njit(cache=True)
 def _gain_bound(p, f_lo, f_hi, r_lo, r_hi, u_lo, u_hi, h_lo, h_hi, aperture, half_length):
     """Largest relative gain over the hull: sector and omni patterns; 1 for the others."""
     code = p[c.PATTERN]
@@ -141,7 +141,7 @@ def _aperture_near(p, f_lo, f_hi, rho_lo, centre2):
     return best * (1.0 + 1e-9)
 
 
-@njit(cache=True, inline="always")
+@njit(cache=True)
 def _bound(p, box):
     """Upper bound of one emitter's density over one site-frame box (x0, x1, y0, y1, z0, z1)."""
     f_lo = r_lo = u_lo = math.inf

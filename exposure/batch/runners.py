@@ -28,6 +28,7 @@ THREAD_VARIABLES: tuple[str, ...] = (
     "BLIS_NUM_THREADS",
     "VECLIB_MAXIMUM_THREADS",
     "NUMEXPR_NUM_THREADS",
+    "NUMBA_NUM_THREADS",  # the compiled field kernels: one thread per worker, the pool is the parallelism
 )
 
 
@@ -106,7 +107,7 @@ class ProcessPoolRunner:
 
 @contextmanager
 def _one_thread_environment():
-    """One numpy/BLAS thread in processes started inside; the environment restored after."""
+    """One numpy/BLAS/numba thread in processes started inside; the environment restored after."""
     saved = {name: os.environ.get(name) for name in THREAD_VARIABLES}
     os.environ.update(dict.fromkeys(THREAD_VARIABLES, "1"))
     try:

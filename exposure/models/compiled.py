@@ -358,8 +358,29 @@ def _density(p, tables, px, py, pz, spatial_peak):
 
 @njit(cache=True)
 def density_at(p, tables, px, py, pz, spatial_peak):
-    """:func:`_density` as a function of its own, not inlined: the kernels that call it compile in
-    seconds instead of a minute (the call costs a few cycles of the hundreds a pair takes)."""
+    r""":func:`_density` as a function of its own, not inlined: the kernels that call it compile in
+    seconds instead of a minute (the call costs a few cycles of the hundreds a pair takes).
+
+    Parameters
+    ----------
+    p : ndarray, shape (PARAMS,)
+        One emitter's parameter row.
+    tables : ndarray
+        The emitters' tabulated patterns.
+    px, py, pz : float
+        A site-frame point [m].
+    spatial_peak : bool
+        The ``peak`` evaluation.
+
+    Returns
+    -------
+    float
+        The emitter's power density there [W/m²], reflection included.
+
+    References
+    ----------
+    As :func:`exposure.models.power_density` (docs/references.md §§ 3, 7–9).
+    """
     return _density(p, tables, px, py, pz, spatial_peak)
 
 

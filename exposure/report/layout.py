@@ -47,6 +47,48 @@ def picture(image, width: float, height: float):
     return Picture()
 
 
+def outline_entry(title: str, key: str):
+    """A zero-size flowable that puts a bookmark here and an entry in the PDF's outline."""
+    from reportlab.platypus import Flowable
+
+    class Entry(Flowable):
+        def wrap(self, available_width, available_height):
+            return 0, 0
+
+        def draw(self) -> None:
+            entries = getattr(self.canv, "outline_entries", None)
+            if entries is None:  # a plain canvas: the page is final now
+                self.canv.bookmarkPage(key)
+                self.canv.addOutlineEntry(title, key, level=0, closed=False)
+            else:  # a deferring canvas bookmarks the page when it writes it
+                entries.append((self.canv.getPageNumber(), title, key))
+
+    return Entry()
+
+
+CELL_PADDING_PT = 6.0
+"""A table cell's left and right padding together [pt] (the table style's 3 + 3)."""
+
+
+def header_safe_widths(header: list[str], widths: list[float], style) -> list[float]:
+    """Column widths [pt] in which no header word is broken: a column narrower than its header's
+    longest word takes the difference from the columns with room to spare, in proportion."""
+    from reportlab.pdfbase.pdfmetrics import stringWidth
+
+    need = [
+        max((stringWidth(word, style.fontName, style.fontSize) for word in str(h).split()), default=0.0)
+        + CELL_PADDING_PT
+        + 0.5
+        for h in header
+    ]
+    short = sum(max(n - w, 0.0) for n, w in zip(need, widths, strict=True))
+    spare = [max(w - n, 0.0) for n, w in zip(need, widths, strict=True)]
+    if short <= 0.0 or sum(spare) < short:
+        return widths
+    take = short / sum(spare)
+    return [max(w, n) if n > w else w - s * take for n, w, s in zip(need, widths, spare, strict=True)]
+
+
 def esc(value) -> str:
     """Text for Paragraph markup: ``&``, ``<`` and ``>`` escaped, nothing interpreted, and every
     script set in a font that has it (:func:`exposure.report.fonts.markup`)."""
@@ -118,6 +160,7 @@ class Builder:
 
         self.section_number += 1
         self.add(PageBreak() if new_page else CondPageBreak(room))
+        self.add(outline_entry(f"{self.section_number}  {title}", f"section-{self.section_number}"))
         self.add(self.p(f"{self.section_number}&nbsp;&nbsp;{esc(title)}", "h1"))
 
     def bullets(self, items: list[str], style: str = "bullet") -> None:
@@ -146,8 +189,8 @@ class Builder:
 
         data = [[cell(esc(h), i, True) for i, h in enumerate(header)]]
         data += [[cell(v, i) for i, v in enumerate(row)] for row in rows]
-        total = sum(widths)
-        table = Table(data, colWidths=[self.width * w / total for w in widths], repeatRows=1, hAlign="LEFT")
+        columns = header_safe_widths(header, [self.width * w / sum(widths) for w in widths], self.st["head"])
+        table = Table(data, colWidths=columns, repeatRows=1, hAlign="LEFT")
         commands = [
             ("BACKGROUND", (0, 0), (-1, 0), colors.HexColor(HEADER_BG)),
             ("LINEBELOW", (0, 0), (-1, 0), 0.8, colors.HexColor(ACCENT)),
@@ -206,6 +249,7 @@ def numbered_canvas(site_id: str):
         def __init__(self, *args, **kwargs):
             super().__init__(*args, **kwargs)
             self._pages: list[dict] = []
+            self.outline_entries: list[tuple[int, str, str]] = []  # (page, title, key), see outline_entry
 
         def showPage(self):
             self._pages.append(dict(self.__dict__))
@@ -216,6 +260,10 @@ def numbered_canvas(site_id: str):
             for state in self._pages:
                 self.__dict__.update(state)
                 self._footer(total)
+                for page, title, key in self.outline_entries:
+                    if page == self._pageNumber:
+                        self.bookmarkPage(key)
+                        self.addOutlineEntry(title, key, level=0, closed=False)
                 super().showPage()
             super().save()
 

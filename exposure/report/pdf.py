@@ -112,19 +112,29 @@ def render_pdf(assessment: Assessment, *, date: _dt.date | None = None, comparis
         from exposure.report.measurement_pages import comparison_appendix
 
         comparison_appendix(b, comparison)
-    _build(doc, b.story, numbered_canvas(assessment.site_id))
+    _build(doc, b.story, numbered_canvas(assessment.site_id), date)
     return buffer.getvalue()
 
 
-def _build(doc, story, canvasmaker) -> None:
-    """Build the document with its images stored as binary zlib streams: reportlab's default
-    wraps them in ASCII85, which it encodes in pure Python here (a third of a second per
-    worksheet); PDF readers take either."""
+def _build(doc, story, canvasmaker, date: _dt.date) -> None:
+    """Build the document with its images stored as binary zlib streams (reportlab's default
+    wraps them in ASCII85, which it encodes in pure Python: a third of a second per worksheet;
+    PDF readers take either), and the document's creation and modification dates set to the
+    worksheet's date at 00:00 UTC through reportlab's reading of ``SOURCE_DATE_EPOCH`` (the
+    reproducible-builds convention): equal input, equal bytes."""
+    import calendar
+    import os
+
     from reportlab import rl_config
 
-    saved = rl_config.useA85
+    saved = rl_config.useA85, os.environ.get("SOURCE_DATE_EPOCH")
     rl_config.useA85 = 0
+    os.environ["SOURCE_DATE_EPOCH"] = str(calendar.timegm(date.timetuple()))
     try:
         doc.build(story, canvasmaker=canvasmaker)
     finally:
-        rl_config.useA85 = saved
+        rl_config.useA85 = saved[0]
+        if saved[1] is None:
+            os.environ.pop("SOURCE_DATE_EPOCH", None)
+        else:
+            os.environ["SOURCE_DATE_EPOCH"] = saved[1]

@@ -386,3 +386,59 @@ def test_outputs_get_the_usual_file_mode(tmp_path):
     finally:
         os.umask(mask)
     assert stat.S_IMODE(path.stat().st_mode) == 0o644
+
+
+SECTIONS = (
+    "Result at a glance",
+    "Plan-view exposure map",
+    "Elevation sections through the strongest beams",
+    "Emitters",
+    "Compliance boundaries per emitter",
+    "Surfaces",
+    "Work positions and power-down",
+    "Findings for a qualified person",
+    "Recommended controls",
+    "Method and assumptions",
+    "Cautions",
+    "Review and sign-off",
+)
+"""The worksheet's numbered sections, in order (the subsections of HEADINGS sit inside them)."""
+
+
+def test_the_outline_lists_every_section(sample):
+    """A reader's bookmarks: one per numbered section, in order, each on the page that shows it."""
+    outline = sample.reader.outline
+    titles = [entry.title for entry in outline]
+    assert titles == [f"{n}  {title}" for n, title in enumerate(SECTIONS, start=1)]
+    for entry in outline:
+        page = sample.reader.get_destination_page_number(entry)
+        assert entry.title.split("  ", 1)[1] in squash(sample.pages[page]), entry.title
+
+
+def test_document_dates_are_the_worksheet_date(sample):
+    """Creation and modification dates: the worksheet's date at 00:00 UTC (deterministic)."""
+    info = sample.reader.metadata
+    stamp = DATE.strftime("D:%Y%m%d000000")
+    assert info["/CreationDate"].startswith(stamp) and info["/ModDate"].startswith(stamp)
+
+
+def test_table_headers_never_break_inside_a_word():
+    """Column widths leave room for each header's longest word (the worksheet's tables)."""
+    from reportlab.pdfbase.pdfmetrics import stringWidth
+
+    from exposure.report import fonts
+    from exposure.report.layout import CELL_PADDING_PT, header_safe_widths, styles
+
+    fonts.register_fonts()
+    style = styles()["head"]
+    header = ["Surface", "Headroom", "Averaging", "Compliant"]
+    widths = header_safe_widths(header, [200.0, 20.0, 20.0, 60.0], style)
+    assert sum(widths) == pytest.approx(300.0)
+    for word, width in zip(header, widths, strict=True):
+        assert width >= stringWidth(word, style.fontName, style.fontSize) + CELL_PADDING_PT
+
+
+def test_no_header_word_is_split_in_the_worksheet(sample):
+    for word in ("Headroom", "Head-room", "Averaging", "Compliant", "Elev."):
+        broken = [word[:k] + " " + word[k:] for k in range(2, len(word) - 1)]
+        assert not any(b in sample.text for b in broken if b.replace(" ", "") == word)

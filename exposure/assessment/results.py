@@ -13,6 +13,7 @@ from typing import Any
 
 import numpy as np
 
+from exposure.errors import UnknownKeyError
 from exposure.site.model import Document, GeoOrigin
 from exposure.vocabulary import (
     Severity,
@@ -85,6 +86,13 @@ class EmitterResult:
     public_headroom_scale: float | None = None  # factor on this emitter's power that keeps every
     # public surface compliant with the others as they are (None: no public surface it reaches)
     plan_azimuth_deg: float | None = None  # boresight azimuth in the plan's frame, for drawings (not in the JSON)
+
+    def __repr__(self) -> str:
+        front = {t: d["front"] for t, d in self.boundary_m.items()}
+        return (
+            f"EmitterResult(id={self.id!r}, kind={self.kind!r}, frequency_mhz={self.frequency_mhz:g}, "
+            f"eirp_w={self.eirp_w:.4g}, model={self.model!r}, boundary_front_m={front})"
+        )
 
     def to_json(self) -> dict:
         return {
@@ -160,6 +168,13 @@ class SurfaceResult:
     governing_criterion: str | None = None  # "single", "whole-body" or "local": what gives the governing maximum
     criterion_at_max: dict[str, str] = field(default_factory=dict)  # tier -> the criterion of that maximum
     grid: SurfaceGrid | None = field(default=None, compare=False, repr=False)
+
+    def __repr__(self) -> str:
+        peaks = {t: round(v, 4) for t, v in self.max_ratio.items()}
+        return (
+            f"SurfaceResult(name={self.name!r}, access={self.access!r}, max_ratio={peaks}, "
+            f"compliant={self.compliant}, area_above_m2={ {t: round(v, 2) for t, v in self.area_above_m2.items()} })"
+        )
 
     def to_json(self) -> dict:
         return {
@@ -294,7 +309,82 @@ class Assessment:
         }
 
     def surface(self, name: str) -> SurfaceResult:
-        return next(s for s in self.surfaces if s.name == name)
+        """The surface of this name (:class:`~exposure.errors.UnknownKeyError`, a ``KeyError``,
+        naming the surfaces there are)."""
+        return _named(self.surfaces, "name", name, "surface")
 
     def emitter(self, emitter_id: str) -> EmitterResult:
-        return next(e for e in self.emitters if e.id == emitter_id)
+        """The emitter with this id (:class:`~exposure.errors.UnknownKeyError` naming the ids)."""
+        return _named(self.emitters, "id", emitter_id, "emitter")
+
+    def __repr__(self) -> str:
+        worst = self._governing()
+        figure = "" if worst is None else f", governing {100 * worst[1]:.4g} % of {worst[2]} on {worst[0]!r}"
+        return (
+            f"Assessment(site={self.site_id!r}, verdict={self.verdict!r}, standard={self.standard!r}{figure}, "
+            f"{len(self.emitters)} emitters, {len(self.surfaces)} surfaces, {len(self.flags)} flags)"
+        )
+
+    def _governing(self) -> tuple[str, float, str] | None:
+        """The judged surface whose governing ratio is highest: (name, ratio, tier)."""
+        judged = [(s.name, s.max_ratio[s.governing_tier], s.governing_tier) for s in self.surfaces if s.governing_tier]
+        return max(judged, key=lambda item: item[1], default=None)
+
+    TABLES = ("emitters", "surfaces", "work_positions", "zones", "signs", "flags", "assumptions")
+    """The tabular parts of the result (:meth:`to_frame`)."""
+
+    def to_frame(self, part: str = "surfaces"):
+        """One tabular part of the result as a pandas DataFrame, a row per item, the columns its
+        JSON keys (nested ones joined by dots: ``max_ratio.general_public``).
+
+        Parameters
+        ----------
+        part : {"emitters", "surfaces", "work_positions", "zones", "signs", "flags", "assumptions"}
+
+        Returns
+        -------
+        pandas.DataFrame
+
+        Raises
+        ------
+        UnknownKeyError
+            *part* is not one of :attr:`TABLES`.
+        ImportError
+            pandas is not installed (``pip install 'rf-exposure[notebook]'``).
+        """
+        if part not in self.TABLES:
+            raise UnknownKeyError(f"no table {part!r}; the tables are: {', '.join(self.TABLES)}")
+        try:
+            import pandas as pd
+        except ImportError:
+            raise ImportError("to_frame needs pandas: pip install 'rf-exposure[notebook]'") from None
+        return pd.json_normalize(self.to_json()[part])
+
+    def _repr_html_(self) -> str:
+        """A notebook's view: the verdict and a table of the surfaces."""
+        from html import escape
+
+        rows = "".join(
+            "<tr>"
+            f"<td>{escape(s.name)}</td><td>{escape(s.access)}</td>"
+            + "".join(f"<td>{100 * s.max_ratio[t]:.4g} %</td>" for t in ("general_public", "occupational"))
+            + f"<td>{'—' if s.compliant is None else ('yes' if s.compliant else 'no')}</td>"
+            f"<td>{s.area_above_m2['general_public']:.4g}</td>"
+            "</tr>"
+            for s in self.surfaces
+        )
+        return (
+            f"<div><p><b>{escape(self.site_name)}</b> ({escape(self.site_id)}): <b>{escape(self.verdict)}</b>, "
+            f"{escape(self.standard_citation)}; {len(self.emitters)} emitters, {len(self.flags)} flags.</p>"
+            "<table><thead><tr><th>surface</th><th>access</th><th>max, % of general public</th>"
+            "<th>max, % of occupational</th><th>compliant</th><th>area above general public [m²]</th></tr></thead>"
+            f"<tbody>{rows}</tbody></table></div>"
+        )
+
+
+def _named(items, key: str, wanted: str, what: str):
+    for item in items:
+        if getattr(item, key) == wanted:
+            return item
+    known = ", ".join(repr(getattr(i, key)) for i in items)
+    raise UnknownKeyError(f"{what} {wanted!r} is not in the result; known: {known}")

@@ -9,7 +9,7 @@
   (:mod:`~exposure.site.model`).
 """
 
-from exposure.site.load import SUFFIXES, load_site, read_document, validate_record
+from exposure.site.load import SUFFIXES, load_record_data, load_site, read_document, site_from_record, validate_record
 from exposure.site.model import AccessPoint, Emitter, Site, Surface, WorkPosition
 
 __all__ = [
@@ -19,7 +19,9 @@ __all__ = [
     "Site",
     "Surface",
     "WorkPosition",
+    "load_record_data",
     "load_site",
+    "site_from_record",
     "read_document",
     "validate_record",
 ]

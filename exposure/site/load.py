@@ -78,6 +78,47 @@ def validate_record(data: dict, source: str) -> SiteRecord:
         raise InputError(format_validation_errors(exc, data), source) from None
 
 
+def load_record_data(
+    data: dict,
+    *,
+    source: str = "<in-memory record>",
+    base: str | Path | None = None,
+    standard: str | None = None,
+    limits_file: str | Path | None = None,
+) -> Site:
+    """Validate and resolve a site record given as a parsed document (the dict a TOML or JSON
+    file holds), as :func:`load_site` does a file's.
+
+    Parameters
+    ----------
+    data : dict
+        The record.
+    source : str
+        The name its messages and results carry (default ``<in-memory record>``).
+    base : path-like, optional
+        The folder its relative paths (``pattern_file``, ``limits_file``) are read from;
+        default the working folder.
+    standard, limits_file : optional
+        As for :func:`load_site`.
+
+    Returns
+    -------
+    Site
+        Its ``sha256`` is that of the record's canonical JSON (keys sorted).
+
+    Raises
+    ------
+    InputError
+        Every problem, one line each, naming the source and the field path.
+    """
+    import json
+
+    record = validate_record(data, source)
+    raw = json.dumps(data, sort_keys=True, ensure_ascii=False, default=str).encode("utf-8")
+    path = Path(base if base is not None else ".") / source
+    return site_from_record(record, path, raw, standard=standard, limits_file=limits_file)
+
+
 def load_site(path: str | Path, *, standard: str | None = None, limits_file: str | Path | None = None) -> Site:
     """Read, validate and resolve one site record.
 
@@ -95,12 +136,42 @@ def load_site(path: str | Path, *, standard: str | None = None, limits_file: str
     InputError
         Every problem, one line each, naming the file and the field path.
     """
+    path = Path(path)
+    data, raw = read_document(path)
+    record = validate_record(data, str(path))
+    return site_from_record(record, path, raw, standard=standard, limits_file=limits_file)
+
+
+def site_from_record(
+    record: SiteRecord,
+    path: Path,
+    raw: bytes,
+    *,
+    standard: str | None = None,
+    limits_file: str | Path | None = None,
+) -> Site:
+    """The :class:`Site` of a validated record: its limit table resolved, its pattern files read
+    (relative to ``path``'s folder) and its emitters made plain.
+
+    Parameters
+    ----------
+    record : SiteRecord
+        From :func:`validate_record`.
+    path : Path
+        The record's file (or a name for an in-memory record, in the folder its relative paths
+        are read from).
+    raw : bytes
+        The record's bytes, whose SHA-256 the site carries.
+    standard, limits_file : optional
+        As for :func:`load_site`.
+
+    Returns
+    -------
+    Site
+    """
     from exposure.limits import resolve
 
-    path = Path(path)
     src = str(path)
-    data, raw = read_document(path)
-    record = validate_record(data, src)
 
     if limits_file is None and standard is None and record.site.limits_file:
         limits_file = path.parent / record.site.limits_file

@@ -59,3 +59,38 @@ DIRECTIONS: tuple[Direction, ...] = get_args(Direction)
 ExportFormat = Literal["geojson", "dxf", "csv", "png", "svg"]
 EXPORT_FORMATS: tuple[ExportFormat, ...] = get_args(ExportFormat)
 """What ``exposure export`` writes, in the order it writes them."""
+
+
+EMITTER_KEYS: tuple[str, ...] = (
+    "id",
+    "operator",
+    "kind",
+    "frequency_mhz",
+    "power_w",
+    "power_dbm",
+    "ports",
+    "line_loss_db",
+    "gain_dbi",
+    "gain_dbd",
+    "eirp_w",
+    "x_m",
+    "y_m",
+    "z_m",
+    "azimuth_deg",
+    "mech_tilt_deg",
+    "elec_tilt_deg",
+    "h_beamwidth_deg",
+    "v_beamwidth_deg",
+    "front_to_back_db",
+    "sidelobe_floor_db",
+    "length_m",
+    "duty_factor",
+    "power_reduction_factor",
+    "diameter_m",
+    "aperture_efficiency",
+    "elevation_deg",
+    "h_scan_deg",
+    "v_scan_deg",
+    "pattern_file",
+)
+"""A site record's emitter keys, each also an option of ``exposure screen``, under the same name."""

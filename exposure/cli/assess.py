@@ -20,6 +20,7 @@ from exposure.cli.common import (
     print_cautions,
     print_json,
 )
+from exposure.cli.examples import epilog
 from exposure.numbers import number
 
 EXIT_FAIL_ON = 3
@@ -169,4 +170,4 @@ def render(result) -> None:
 
 
 def register(app: typer.Typer) -> None:
-    app.command("assess")(assess)
+    app.command("assess", epilog=epilog("assess"))(assess)

@@ -11,6 +11,7 @@ from typing import Annotated
 import typer
 
 from exposure.cli.common import LimitsFileOption, StandardOption, is_terminal
+from exposure.cli.examples import epilog
 
 
 def batch(
@@ -202,4 +203,4 @@ def _sigterm_as_interrupt():
 
 
 def register(app: typer.Typer) -> None:
-    app.command("batch")(batch)
+    app.command("batch", epilog=epilog("batch"))(batch)

@@ -13,11 +13,13 @@ from exposure.vocabulary import STANDARDS
 
 StandardOption = Annotated[
     str | None,
-    typer.Option("--standard", help="Limit set: " + " | ".join(STANDARDS) + " (default: the site's)."),
+    typer.Option("--standard", metavar="KEY", help="Limit set: " + " | ".join(STANDARDS) + " (default: the site's)."),
 ]
 LimitsFileOption = Annotated[
     Path | None,
-    typer.Option("--limits-file", help="A local code's limit table (TOML, the format of limits/*.toml)."),
+    typer.Option(
+        "--limits-file", metavar="FILE.toml", help="A local code's limit table (TOML, the format of limits/*.toml)."
+    ),
 ]
 JsonOption = Annotated[bool, typer.Option("--json", help="Print machine-readable JSON instead of tables.")]
 

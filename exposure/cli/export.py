@@ -9,6 +9,7 @@ import typer
 
 from exposure.cli.assess import GridOption, MeasureAboveOption, QuietOption, run_assessment
 from exposure.cli.common import LimitsFileOption, StandardOption, print_cautions
+from exposure.cli.examples import epilog
 from exposure.vocabulary import EXPORT_FORMATS
 
 FORMAT_HELP = (
@@ -72,4 +73,4 @@ def write_and_report(result, folder: Path, formats: tuple[str, ...]) -> None:
 
 
 def register(app: typer.Typer) -> None:
-    app.command("export")(export)
+    app.command("export", epilog=epilog("export"))(export)

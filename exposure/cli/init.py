@@ -7,6 +7,8 @@ from typing import Annotated
 
 import typer
 
+from exposure.cli.examples import epilog
+
 
 def init(
     path: Annotated[Path, typer.Argument(help="Where to write the template.")] = Path("site.toml"),
@@ -26,4 +28,4 @@ def init(
 
 
 def register(app: typer.Typer) -> None:
-    app.command("init")(init)
+    app.command("init", epilog=epilog("init"))(init)

@@ -13,6 +13,7 @@ from typing import TYPE_CHECKING, Annotated, Any
 
 import typer
 
+from exposure.cli.examples import epilog
 from exposure.vocabulary import DEFAULT_STANDARD, STANDARDS
 
 if TYPE_CHECKING:  # imported inside the command: startup time matters
@@ -26,7 +27,7 @@ _FILE_HELP = "Your own limit table (TOML, schema exposure-limits/1); wins over -
 
 def register(app: typer.Typer) -> None:
     """Add ``exposure limits`` to *app*."""
-    app.command("limits", help="Limit values of a published table at a frequency.")(limits)
+    app.command("limits", help="Limit values of a published table at a frequency.", epilog=epilog("limits"))(limits)
 
 
 def limits(

@@ -16,6 +16,7 @@ from exposure.cli.common import (
     make_table,
     print_json,
 )
+from exposure.cli.examples import epilog
 from exposure.numbers import number
 
 
@@ -98,4 +99,4 @@ def probe(
 
 
 def register(app: typer.Typer) -> None:
-    app.command("probe")(probe)
+    app.command("probe", epilog=epilog("probe"))(probe)

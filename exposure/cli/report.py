@@ -19,6 +19,7 @@ from exposure.cli.common import (
     StandardOption,
     print_cautions,
 )
+from exposure.cli.examples import epilog
 from exposure.vocabulary import EXPORT_FORMATS
 
 
@@ -161,4 +162,4 @@ def check_output_paths(outputs: list[Path], inputs: list[Path]) -> None:
 
 
 def register(app: typer.Typer) -> None:
-    app.command("report")(report)
+    app.command("report", epilog=epilog("report"))(report)

@@ -4,6 +4,8 @@ from __future__ import annotations
 
 import typer
 
+from exposure.cli.examples import epilog
+
 
 def schema() -> None:
     """Print the JSON Schema (draft 2020-12) of the site record."""
@@ -14,4 +16,4 @@ def schema() -> None:
 
 
 def register(app: typer.Typer) -> None:
-    app.command("schema")(schema)
+    app.command("schema", epilog=epilog("schema"))(schema)

@@ -9,48 +9,72 @@ physics.
 from __future__ import annotations
 
 import json
+from pathlib import Path
 from typing import Annotated, Any
 
 import typer
 
+from exposure.cli.examples import epilog
 from exposure.numbers import number
-from exposure.vocabulary import DEFAULT_STANDARD, EMITTER_KINDS, MODELS, STANDARDS
+from exposure.vocabulary import DEFAULT_STANDARD, EMITTER_KEYS, EMITTER_KINDS, MODELS, STANDARDS
+
+RADIATION = "Emitter: power and gain (site-record keys)"
+PATTERN = "Emitter: pattern and aperture (site-record keys)"
+PLACE = "Emitter: place and labels (site-record keys; they do not change the distances)"
+JUDGE = "How to judge it"
+SOURCE = "From a site record"
 
 
 def register(app: typer.Typer) -> None:
     """Add ``exposure screen`` to *app*."""
     app.command(
         "screen",
-        help="Compliance distances of one emitter along its main beam (no site file).",
+        help="Compliance distances of one emitter along its main beam, without a site: the quantities of a "
+        "site record's emitter, under the same names, or one emitter read from a record (--from, --emitter).",
+        epilog=epilog("screen"),
     )(screen)
 
 
+def _number(flag: str, help_text: str, panel: str, *aliases: str):
+    return typer.Option(flag, *aliases, help=help_text, show_default=False, rich_help_panel=panel, metavar="NUMBER")
+
+
 def screen(
-    frequency_mhz: Annotated[
-        float | None, typer.Option("--frequency-mhz", help="Frequency, MHz.", show_default=False)
+    frequency_mhz: Annotated[float | None, _number("--frequency-mhz", "Carrier frequency [MHz].", RADIATION)] = None,
+    power_w: Annotated[
+        float | None, _number("--power-w", "Transmitter output per port at full power [W].", RADIATION)
+    ] = None,
+    power_dbm: Annotated[
+        float | None, _number("--power-dbm", "Transmitter output per port [dBm] (instead of --power-w).", RADIATION)
+    ] = None,
+    ports: Annotated[
+        int | None,
+        typer.Option(
+            "--ports",
+            help="Ports or carriers at that power [count] (default 1).",
+            show_default=False,
+            rich_help_panel=RADIATION,
+            metavar="COUNT",
+        ),
+    ] = None,
+    line_loss_db: Annotated[
+        float | None, _number("--line-loss-db", "Loss between transmitter and antenna [dB] (default 0).", RADIATION)
+    ] = None,
+    gain_dbi: Annotated[float | None, _number("--gain-dbi", "Peak gain [dBi].", RADIATION)] = None,
+    gain_dbd: Annotated[
+        float | None, _number("--gain-dbd", "Peak gain [dBd] (instead of --gain-dbi; dBi = dBd + 2.15).", RADIATION)
     ] = None,
     eirp_w: Annotated[
         float | None,
-        typer.Option("--eirp-w", help="EIRP at full output, W (instead of --power-w).", show_default=False),
+        _number("--eirp-w", "EIRP at full power [W] (instead of power, gain and line loss).", RADIATION),
     ] = None,
-    power_w: Annotated[
+    duty_factor: Annotated[
+        float | None, _number("--duty-factor", "Time-averaged fraction of full power, (0, 1] (default 1).", RADIATION)
+    ] = None,
+    power_reduction_factor: Annotated[
         float | None,
-        typer.Option(
-            "--power-w",
-            help="Transmitter power at full output, W; needs --gain-dbi (dishes: or --diameter-m).",
-            show_default=False,
-        ),
+        _number("--power-reduction-factor", "An array's enforced time-averaged power reduction, (0, 1].", RADIATION),
     ] = None,
-    gain_dbi: Annotated[float | None, typer.Option("--gain-dbi", help="Peak gain, dBi.", show_default=False)] = None,
-    line_loss_db: Annotated[
-        float | None,
-        typer.Option(
-            "--line-loss-db",
-            help="Loss between transmitter and antenna, dB (with --power-w; default 0).",
-            show_default=False,
-        ),
-    ] = None,
-    model: Annotated[str, typer.Option("--model", help=" | ".join(MODELS) + ".")] = "auto",
     kind: Annotated[
         str | None,
         typer.Option(
@@ -58,74 +82,192 @@ def screen(
             help=" | ".join(EMITTER_KINDS)
             + " (default: dish with --diameter-m, panel with --h-beamwidth-deg, else omni).",
             show_default=False,
+            rich_help_panel=PATTERN,
+            metavar="KIND",
         ),
     ] = None,
     h_beamwidth_deg: Annotated[
-        float | None,
-        typer.Option(
-            "--h-beamwidth-deg", help="Horizontal half-power beamwidth, deg; omit for an omni.", show_default=False
-        ),
+        float | None, _number("--h-beamwidth-deg", "Horizontal half-power beamwidth [deg].", PATTERN)
     ] = None,
     v_beamwidth_deg: Annotated[
-        float | None,
-        typer.Option("--v-beamwidth-deg", help="Vertical half-power beamwidth, deg (synthetic).", show_default=False),
+        float | None, _number("--v-beamwidth-deg", "Vertical half-power beamwidth [deg].", PATTERN)
     ] = None,
-    length_m: Annotated[
-        float | None,
-        typer.Option("--length-m", help="Radiating aperture length, m (cylindrical, synthetic).", show_default=False),
+    front_to_back_db: Annotated[
+        float | None, _number("--front-to-back-db", "Front-to-back ratio [dB] (default 25).", PATTERN)
     ] = None,
-    diameter_m: Annotated[
-        float | None, typer.Option("--diameter-m", help="Dish diameter, m (aperture).", show_default=False)
+    sidelobe_floor_db: Annotated[
+        float | None, _number("--sidelobe-floor-db", "Vertical side-lobe floor below the peak [dB].", PATTERN)
     ] = None,
+    mech_tilt_deg: Annotated[
+        float | None, _number("--mech-tilt-deg", "Mechanical downtilt [deg, positive down].", PATTERN)
+    ] = None,
+    elec_tilt_deg: Annotated[
+        float | None, _number("--elec-tilt-deg", "Electrical downtilt [deg, positive down].", PATTERN)
+    ] = None,
+    length_m: Annotated[float | None, _number("--length-m", "Radiating aperture length [m].", PATTERN)] = None,
+    diameter_m: Annotated[float | None, _number("--diameter-m", "Dish diameter [m].", PATTERN)] = None,
     aperture_efficiency: Annotated[
-        float, typer.Option("--aperture-efficiency", help="Dish aperture efficiency, 0-1 (aperture).")
-    ] = 0.55,
-    reflection: Annotated[
-        str,
+        float | None, _number("--aperture-efficiency", "Dish aperture efficiency, 0-1 (default 0.55).", PATTERN)
+    ] = None,
+    elevation_deg: Annotated[
+        float | None, _number("--elevation-deg", "A dish's pointing elevation [deg, positive up].", PATTERN)
+    ] = None,
+    h_scan_deg: Annotated[
+        float | None, _number("--h-scan-deg", "An array's total horizontal scan range [deg].", PATTERN)
+    ] = None,
+    v_scan_deg: Annotated[
+        float | None, _number("--v-scan-deg", "An array's total vertical scan range [deg].", PATTERN)
+    ] = None,
+    pattern_file: Annotated[
+        Path | None,
         typer.Option(
-            "--reflection",
-            help="Ground reflection on power density: none (x1) | typical (x2.56, the default, as for site records) | full (x4); OET 65.",
+            "--pattern-file",
+            help="CSV of tabulated cuts (plane,angle_deg,attenuation_db).",
+            show_default=False,
+            rich_help_panel=PATTERN,
+            metavar="FILE.csv",
         ),
-    ] = "typical",
+    ] = None,
+    x_m: Annotated[float | None, _number("--x-m", "Centre of radiation, east [m].", PLACE)] = None,
+    y_m: Annotated[float | None, _number("--y-m", "Centre of radiation, north [m].", PLACE)] = None,
+    z_m: Annotated[float | None, _number("--z-m", "Centre of radiation, height [m].", PLACE)] = None,
+    azimuth_deg: Annotated[
+        float | None, _number("--azimuth-deg", "Boresight, clockwise from north [deg].", PLACE)
+    ] = None,
+    emitter_id: Annotated[
+        str | None,
+        typer.Option("--id", help="A label for the emitter.", show_default=False, rich_help_panel=PLACE, metavar="ID"),
+    ] = None,
+    operator: Annotated[
+        str | None,
+        typer.Option(
+            "--operator", help="Its operator (a label).", show_default=False, rich_help_panel=PLACE, metavar="NAME"
+        ),
+    ] = None,
+    model: Annotated[
+        str | None,
+        typer.Option(
+            "--model",
+            help=" | ".join(MODELS) + " (default auto).",
+            show_default=False,
+            rich_help_panel=JUDGE,
+            metavar="MODEL",
+        ),
+    ] = None,
+    ground_reflection: Annotated[
+        str | None,
+        typer.Option(
+            "--ground-reflection",
+            "--reflection",
+            help="Ground reflection on power density: none (x1) | typical (x2.56) | full (x4), OET 65 "
+            "(default typical, or the record's with --from).",
+            show_default=False,
+            rich_help_panel=JUDGE,
+            metavar="REFLECTION",
+        ),
+    ] = None,
     standard: Annotated[
-        str, typer.Option("--standard", help="Limit table: " + " | ".join(STANDARDS) + ".")
-    ] = DEFAULT_STANDARD,
+        str | None,
+        typer.Option(
+            "--standard",
+            help="Limit table: "
+            + " | ".join(STANDARDS)
+            + f" (default {DEFAULT_STANDARD}, or the record's with --from).",
+            show_default=False,
+            rich_help_panel=JUDGE,
+            metavar="KEY",
+        ),
+    ] = None,
     distance_m: Annotated[
         float | None,
-        typer.Option(
-            "--distance-m",
-            help="Separation distance, m: adds the 47 CFR 1.1307(b)(3)(i)(C) exemption test (fcc).",
-            show_default=False,
+        _number(
+            "--distance-m", "Separation distance [m]: adds the 47 CFR 1.1307(b)(3)(i)(C) exemption test (fcc).", JUDGE
         ),
     ] = None,
-    as_json: Annotated[bool, typer.Option("--json", help="Print JSON instead of a table.")] = False,
+    as_json: Annotated[
+        bool, typer.Option("--json", help="Print JSON instead of a table.", rich_help_panel=JUDGE)
+    ] = False,
+    source: Annotated[
+        Path | None,
+        typer.Option(
+            "--from",
+            help="A site record to take the emitter from.",
+            show_default=False,
+            rich_help_panel=SOURCE,
+            metavar="SITE",
+        ),
+    ] = None,
+    emitter: Annotated[
+        str | None,
+        typer.Option(
+            "--emitter",
+            help="The emitter's id in that record.",
+            show_default=False,
+            rich_help_panel=SOURCE,
+            metavar="ID",
+        ),
+    ] = None,
 ) -> None:
     """Distances along the main beam at which each model falls to each tier's limit."""
-    from exposure.screening import (  # the models load here, not at start-up
-        ScreenRequest,
-        screen_emitter,
+    from exposure.cli.common import print_cautions
+    from exposure.screening import screen_emitter
+
+    given = {k: v for k, v in locals().items() if k in _RECORD_OPTIONS and v is not None}
+    if emitter_id is not None:
+        given["id"] = given.pop("emitter_id", emitter_id)
+    judge = {"model": model, "reflection": ground_reflection, "standard": standard, "distance_m": distance_m}
+    request = _from_record(source, emitter, given, judge) if source is not None or emitter is not None else None
+    if request is None:
+        request = _request(given, judge, Path("."))
+    result = screen_emitter(request)
+    typer.echo(json.dumps(result, indent=2, allow_nan=False) if as_json else _text(result))
+    if not as_json:
+        print_cautions()
+
+
+_RECORD_OPTIONS = frozenset(EMITTER_KEYS) | {"emitter_id"}
+
+
+def _request(keys: dict[str, Any], judge: dict[str, Any], folder: Path):
+    """A screening request from an emitter's record keys (options or a record entry, the same)."""
+    from exposure.screening import ScreenRequest
+    from exposure.site.pattern_file import read_pattern_csv
+
+    values = dict(keys)
+    pattern_file = values.pop("pattern_file", None)
+    pattern = read_pattern_csv(folder / pattern_file) if pattern_file else None
+    return ScreenRequest(
+        **values,
+        pattern=pattern,
+        model=judge["model"] or "auto",
+        reflection=judge["reflection"] or "typical",
+        standard=judge["standard"] or DEFAULT_STANDARD,
+        distance_m=judge["distance_m"],
     )
 
-    result = screen_emitter(
-        ScreenRequest(
-            frequency_mhz=frequency_mhz,
-            eirp_w=eirp_w,
-            power_w=power_w,
-            gain_dbi=gain_dbi,
-            line_loss_db=line_loss_db,
-            model=model,
-            kind=kind,
-            h_beamwidth_deg=h_beamwidth_deg,
-            v_beamwidth_deg=v_beamwidth_deg,
-            length_m=length_m,
-            diameter_m=diameter_m,
-            aperture_efficiency=aperture_efficiency,
-            reflection=reflection,
-            standard=standard,
-            distance_m=distance_m,
-        )
-    )
-    typer.echo(json.dumps(result, indent=2, allow_nan=False) if as_json else _text(result))
+
+def _from_record(source: Path | None, emitter: str | None, given: dict[str, Any], judge: dict[str, Any]):
+    """The request for one emitter of a site record: its keys as written, the record's standard
+    and ground reflection unless given."""
+    from exposure.errors import InputError
+    from exposure.site import load_site, read_document
+
+    if source is None or emitter is None:
+        raise InputError("--from and --emitter go together: the record, and the id of one of its emitters")
+    if given:
+        names = ", ".join("--" + ("id" if k == "id" else k).replace("_", "-") for k in sorted(given))
+        raise InputError(f"--from takes the emitter's quantities from the record; remove {names}")
+    site = load_site(source)  # validates the whole record (exit 2 with every problem)
+    site.emitter(emitter)  # an unknown id: the ids the record has
+    data, _ = read_document(source)
+    entry = next(e for e in data["emitters"] if e.get("id") == emitter)
+    keys = {k: v for k, v in entry.items() if k in EMITTER_KEYS}
+    judge = {
+        **judge,
+        "standard": judge["standard"] or site.table.key,
+        "reflection": judge["reflection"] or site.ground_reflection,
+    }
+    return _request(keys, judge, Path(source).parent)
 
 
 def _text(r: dict[str, Any]) -> str:
@@ -169,6 +311,4 @@ def _text(r: dict[str, Any]) -> str:
     if "exemption_note" in r:
         lines.append("")
         lines.append(r["exemption_note"])
-    lines.append("")
-    lines.append("Predictions only: local codes govern; a qualified professional must review them.")
     return "\n".join(lines)

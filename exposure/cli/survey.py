@@ -9,6 +9,7 @@ import typer
 
 from exposure.cli.assess import GridOption, QuietOption, run_assessment
 from exposure.cli.common import JsonOption, LimitsFileOption, StandardOption, print_cautions, print_json
+from exposure.cli.examples import epilog
 
 
 def plan_survey(
@@ -161,5 +162,5 @@ def _governing(g, percent) -> str:
 
 
 def register(app: typer.Typer) -> None:
-    app.command("plan-survey")(plan_survey)
-    app.command("compare")(compare)
+    app.command("plan-survey", epilog=epilog("plan-survey"))(plan_survey)
+    app.command("compare", epilog=epilog("compare"))(compare)

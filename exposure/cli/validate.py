@@ -15,6 +15,7 @@ from exposure.cli.common import (
     make_table,
     print_json,
 )
+from exposure.cli.examples import epilog
 from exposure.numbers import number
 
 
@@ -44,13 +45,14 @@ def validate(
             site = load_site(path, standard=standard, limits_file=limits_file)
         except InputError as exc:
             failed.extend(exc.lines())
+            summaries.append({"file": str(path), "valid": False, "problems": exc.lines()})
             continue
         summary = _summary(site, patterns)
         summaries.append(summary)
         if not json_out:
             _render(site, summary)
-    if json_out:
-        print_json(summaries if len(sites) > 1 else (summaries[0] if summaries else None))
+    if json_out:  # always a list, one object per file given, in order (valid or not)
+        print_json(summaries)
     if failed:
         raise fail(failed)
 
@@ -68,6 +70,8 @@ def _summary(site, patterns: bool = False) -> dict:
                 warnings.append(problem)
     return {
         "file": str(site.path),
+        "valid": True,
+        "problems": [],
         "sha256": site.sha256,
         "site": {"id": site.id, "name": site.name},
         "standard": site.table.key,
@@ -140,4 +144,4 @@ def _render(site, summary: dict) -> None:
 
 
 def register(app: typer.Typer) -> None:
-    app.command("validate")(validate)
+    app.command("validate", epilog=epilog("validate"))(validate)

@@ -8,14 +8,14 @@ import math
 from dataclasses import dataclass, replace
 from typing import Any
 
-from exposure.antenna import MAX_GAIN_DBI, MIN_GAIN_DBI, Antenna
+from exposure.antenna import DEFAULT_SIDELOBE_FLOOR_DB, MAX_GAIN_DBI, MIN_GAIN_DBI, Antenna, PatternCuts
 from exposure.errors import InputError, UnknownKeyError
 from exposure.limits import load_standard
 from exposure.models import REFLECTION_FACTORS, boresight_distance_to_limit, model_for
 from exposure.models.aperture import dish_gain
 from exposure.screening.exemptions import mpe_exemption
 from exposure.site.model import Emitter
-from exposure.units import linear_to_db, wavelength_m
+from exposure.units import DBD_TO_DBI, dbm_to_watts, linear_to_db, wavelength_m
 from exposure.vocabulary import DEFAULT_STANDARD, EMITTER_KINDS, MODELS, REFLECTIONS, SECTOR_KINDS, TIERS, EmitterKind
 
 SCREEN_ORDER: tuple[str, ...] = ("spherical", "cylindrical", "synthetic", "aperture", "endfire")
@@ -24,13 +24,18 @@ SCREEN_ORDER: tuple[str, ...] = ("spherical", "cylindrical", "synthetic", "apert
 
 @dataclass(frozen=True)
 class ScreenRequest:
-    """One emitter as ``exposure screen`` takes it: quantities at full output, None where not
-    given. Units are in the names; ``reflection`` and ``standard`` are keys."""
+    """One emitter as ``exposure screen`` takes it: the keys of a site record's emitter (under
+    the same names and units), None where not given, and how to judge it (``model``,
+    ``reflection``, ``standard``, ``distance_m``). EIRP and ERP are reported at full output;
+    the models radiate the time-averaged power (duty and power-reduction factors), as in a site."""
 
     frequency_mhz: float | None = None
     eirp_w: float | None = None
     power_w: float | None = None
+    power_dbm: float | None = None
+    ports: int | None = None
     gain_dbi: float | None = None
+    gain_dbd: float | None = None
     line_loss_db: float | None = None
     model: str = "auto"
     kind: str | None = None
@@ -38,10 +43,26 @@ class ScreenRequest:
     v_beamwidth_deg: float | None = None
     length_m: float | None = None
     diameter_m: float | None = None
-    aperture_efficiency: float = 0.55
+    aperture_efficiency: float | None = None
     reflection: str = "typical"
     standard: str = DEFAULT_STANDARD
     distance_m: float | None = None
+    mech_tilt_deg: float | None = None
+    elec_tilt_deg: float | None = None
+    front_to_back_db: float | None = None
+    sidelobe_floor_db: float | None = None
+    h_scan_deg: float | None = None
+    v_scan_deg: float | None = None
+    elevation_deg: float | None = None
+    azimuth_deg: float | None = None
+    x_m: float | None = None
+    y_m: float | None = None
+    z_m: float | None = None
+    duty_factor: float | None = None
+    power_reduction_factor: float | None = None
+    id: str | None = None
+    operator: str | None = None
+    pattern: PatternCuts | None = None  # the cuts of a pattern_file, read by the caller
 
 
 def _check(
@@ -87,6 +108,7 @@ def screen_emitter(o: ScreenRequest) -> dict[str, Any]:
     FCC OET Bulletin 65, Edition 97-01 (1997) (from memory; docs/references.md § 3); 47 CFR § 1.1307(b)(3) (rules of FCC 19-126, 2019; docs/references.md § 2).
     """
 
+    o = _resolved(o)
     if o.frequency_mhz is None:
         raise InputError("--frequency-mhz is required")
     _check("--frequency-mhz", o.frequency_mhz)
@@ -132,24 +154,39 @@ def screen_emitter(o: ScreenRequest) -> dict[str, Any]:
     else:
         gain = None  # EIRP only: the spherical model needs nothing else
     if o.power_w is not None:
-        net_power = o.power_w * 10.0 ** (-(o.line_loss_db or 0.0) / 10.0)
+        net_power = o.power_w * (o.ports or 1) * 10.0 ** (-(o.line_loss_db or 0.0) / 10.0)
     else:
         net_power = o.eirp_w / 10.0 ** ((gain or 0.0) / 10.0)
+    averaging = (o.duty_factor or 1.0) * (o.power_reduction_factor or 1.0)
     antenna = Antenna(
-        id="screen",
+        id=o.id or "screen",
         kind=kind,
         frequency_mhz=o.frequency_mhz,
-        avg_net_power_w=net_power,
+        avg_net_power_w=net_power * averaging,
         gain_dbi=gain if gain is not None else 0.0,
-        position_m=(0.0, 0.0, 0.0),
+        position_m=(o.x_m or 0.0, o.y_m or 0.0, o.z_m or 0.0),
+        azimuth_deg=o.azimuth_deg or 0.0,
+        mech_tilt_deg=o.mech_tilt_deg or 0.0,
+        elec_tilt_deg=o.elec_tilt_deg or 0.0,
         h_beamwidth_deg=o.h_beamwidth_deg if kind in SECTOR_KINDS else None,
         v_beamwidth_deg=o.v_beamwidth_deg,
+        front_to_back_db=25.0 if o.front_to_back_db is None else o.front_to_back_db,
+        sidelobe_floor_db=DEFAULT_SIDELOBE_FLOOR_DB if o.sidelobe_floor_db is None else o.sidelobe_floor_db,
         length_m=o.length_m,
         diameter_m=o.diameter_m,
-        aperture_efficiency=o.aperture_efficiency,
+        aperture_efficiency=0.55 if o.aperture_efficiency is None else o.aperture_efficiency,
+        elevation_deg=o.elevation_deg or 0.0,
+        h_scan_deg=o.h_scan_deg or 0.0,
+        v_scan_deg=o.v_scan_deg or 0.0,
+        pattern=o.pattern,
     )
-    # the options are at full output (no duty factor): time-averaged and full figures agree
-    emitter = Emitter(antenna, operator="", net_power_w=net_power, eirp_w=antenna.avg_eirp_w)
+    # EIRP and ERP at full output, as everywhere; the models radiate the time-averaged power
+    emitter = Emitter(
+        antenna,
+        operator=o.operator or "",
+        net_power_w=net_power,
+        eirp_w=net_power * 10.0 ** ((gain or 0.0) / 10.0) if o.eirp_w is None else o.eirp_w,
+    )
 
     needs = _needs(o, kind, gain is not None)
     applicable = [m for m in SCREEN_ORDER if not needs[m]]
@@ -223,6 +260,32 @@ def screen_emitter(o: ScreenRequest) -> dict[str, Any]:
                 "--distance-m: the exemption test is that of 47 CFR 1.1307(b)(3), for --standard fcc only"
             )
     return result
+
+
+def _resolved(o: ScreenRequest) -> ScreenRequest:
+    """The request with its alternatives resolved: power_dbm to power_w, gain_dbd to gain_dbi
+    (dBi = dBd + 2.15), each given at most once."""
+    for one, other in (("power_w", "power_dbm"), ("gain_dbi", "gain_dbd")):
+        if getattr(o, one) is not None and getattr(o, other) is not None:
+            raise InputError(f"--{one.replace('_', '-')} and --{other.replace('_', '-')}: give one or the other")
+    _check("--power-dbm", o.power_dbm, low=-30.0, high=100.0, low_inclusive=True)
+    _check("--ports", o.ports, low=1.0, high=256.0, low_inclusive=True)
+    _check("--duty-factor", o.duty_factor, high=1.0)
+    _check("--power-reduction-factor", o.power_reduction_factor, high=1.0)
+    for name in ("front_to_back_db", "sidelobe_floor_db", "h_scan_deg", "v_scan_deg"):
+        _check(f"--{name.replace('_', '-')}", getattr(o, name), low_inclusive=True)
+    for name in ("mech_tilt_deg", "elec_tilt_deg", "elevation_deg"):
+        _check(f"--{name.replace('_', '-')}", getattr(o, name), low=-90.0, high=90.0, low_inclusive=True)
+    changes: dict[str, Any] = {}
+    if o.aperture_efficiency is None:
+        changes["aperture_efficiency"] = 0.55  # a record's default
+    if o.power_dbm is not None:
+        changes.update(power_w=float(dbm_to_watts(o.power_dbm)), power_dbm=None)
+    if o.gain_dbd is not None:
+        changes.update(gain_dbi=o.gain_dbd + DBD_TO_DBI, gain_dbd=None)
+    if o.power_reduction_factor is not None and (o.kind or "") != "array":
+        raise InputError("--power-reduction-factor is for beam-steering arrays (--kind array)")
+    return replace(o, **changes) if changes else o
 
 
 def _kind(o: ScreenRequest) -> EmitterKind:

@@ -142,7 +142,7 @@ def test_validate_warns_of_far_and_buried_emitters_and_a_wide_geo_site(write_rec
     )
     result = run("validate", write_record(data), "--json")
     assert result.exit_code == 0, result.output
-    warnings = " ".join(json.loads(result.output)["warnings"])
+    warnings = " ".join(json.loads(result.output)[0]["warnings"])
     assert "emitters[0] (A1) is 580 m from the nearest surface" in warnings
     assert "emitters[1] (D1) at z -2 m is below surface 'Roof'" in warnings
     assert "surfaces span 6.0 km" in warnings

@@ -39,7 +39,7 @@ def test_summary_lists_eirp_and_erp(record, write_record):
     """EIRP = P·ports·10^(−loss/10)·G; ERP = EIRP/1.64 (47 CFR 1.1307(b)(3); OET 65)."""
     result = run("validate", write_record(record), "--json")
     assert result.exit_code == 0, result.output
-    a1 = json.loads(result.output)["emitters"][0]
+    a1 = json.loads(result.output)[0]["emitters"][0]
     eirp = 40 * 2 * 10 ** (-0.05) * 10**1.75
     assert a1["eirp_w"] == pytest.approx(eirp, rel=1e-9)
     assert a1["erp_w"] == pytest.approx(eirp / 1.64, rel=1e-9)
@@ -50,7 +50,7 @@ def test_gain_dbd_is_dbi_minus_2_15(record, write_record):
     del record["emitters"][0]["gain_dbi"]
     record["emitters"][0]["gain_dbd"] = 15.35
     result = run("validate", write_record(record), "--json")
-    assert json.loads(result.output)["emitters"][0]["gain_dbi"] == pytest.approx(17.5)
+    assert json.loads(result.output)[0]["emitters"][0]["gain_dbi"] == pytest.approx(17.5)
 
 
 def test_power_dbm(record, write_record):
@@ -58,7 +58,7 @@ def test_power_dbm(record, write_record):
     del record["emitters"][0]["power_w"]
     record["emitters"][0]["power_dbm"] = 46.0206
     result = run("validate", write_record(record), "--json")
-    assert json.loads(result.output)["emitters"][0]["net_power_w"] == pytest.approx(80 * 10**-0.05, rel=1e-5)
+    assert json.loads(result.output)[0]["emitters"][0]["net_power_w"] == pytest.approx(80 * 10**-0.05, rel=1e-5)
 
 
 def emitter(record, **changes):
@@ -294,5 +294,5 @@ def test_pattern_diagnostics(record, write_record):
     (energy conservation, with this project's 10 % tolerance for the parametric form)."""
     result = run("validate", write_record(record), "--patterns", "--json")
     assert result.exit_code == 0, result.output
-    panel = json.loads(result.output)["emitters"][0]
+    panel = json.loads(result.output)[0]["emitters"][0]
     assert 0.25 < panel["pattern_efficiency"] <= 1.1

@@ -31,11 +31,13 @@ class FailOn(StrEnum):
     verify_by_measurement = "verify-by-measurement"
 
 
-GridOption = Annotated[
-    float | None, typer.Option("--grid-m", help="Map spacing in metres (default: the site's grid_m).")
-]
+GridOption = Annotated[float | None, typer.Option("--grid-m", help="Map spacing [m] (default: the site's grid_m).")]
 MeasureAboveOption = Annotated[
-    float, typer.Option("--measure-above", help="Governing ratio from which a measurement is called for (0-1].")
+    float,
+    typer.Option(
+        "--measure-above",
+        help="Governing ratio [fraction of the limit] from which a measurement is called for, (0, 1].",
+    ),
 ]
 QuietOption = Annotated[bool, typer.Option("--quiet", "-q", help="No progress bar and no cautions on stderr.")]
 

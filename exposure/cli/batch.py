@@ -42,7 +42,7 @@ def batch(
         ),
     ] = None,
     scheduler_timeout: Annotated[
-        float, typer.Option("--scheduler-timeout", min=0.1, help="Seconds to wait for the scheduler.")
+        float, typer.Option("--scheduler-timeout", min=0.1, help="Time to wait for the scheduler [s].")
     ] = 10.0,
     no_report: Annotated[bool, typer.Option("--no-report", help="Write each site's JSON only, no PDF.")] = False,
     resume: Annotated[
@@ -53,7 +53,7 @@ def batch(
     limits_file: LimitsFileOption = None,
     grid_m: Annotated[
         float | None,
-        typer.Option("--grid-m", help="Map spacing in metres for every site (default: each site's grid_m)."),
+        typer.Option("--grid-m", help="Map spacing [m] for every site (default: each site's grid_m)."),
     ] = None,
     quiet: Annotated[bool, typer.Option("--quiet", "-q", help="No progress bar and no closing line.")] = False,
 ) -> None:

@@ -109,6 +109,46 @@ ADVERSARIAL = {
         TERRACE,
     ),
 }
+# the same terrace judged by ICNIRP 2020 (a local criterion beside the whole-body one), averaged
+# over the body height, with a hole (a plant room) in the roof
+_icnirp = copy.deepcopy(ADVERSARIAL["terrace"])
+_icnirp["site"].update(standard="icnirp-2020", evaluation="spatial-average")
+_icnirp["surfaces"][0]["holes"] = [[[15, 3], [22, 3], [22, 8], [15, 8]]]
+ADVERSARIAL["terrace, ICNIRP 2020, averaged, a hole"] = _icnirp
+# a Yagi (end-fire) and an omni just above a walkway
+ADVERSARIAL["yagi and omni"] = _site(
+    [
+        {
+            "id": "Y1",
+            "operator": "Operator C (invented)",
+            "kind": "directional",
+            "frequency_mhz": 450,
+            "power_w": 50,
+            "gain_dbi": 11,
+            "x_m": 5.0,
+            "y_m": 15.0,
+            "z_m": 2.4,
+            "azimuth_deg": 95,
+            "h_beamwidth_deg": 50,
+            "v_beamwidth_deg": 45,
+            "length_m": 1.2,
+        },
+        {
+            "id": "O1",
+            "operator": "Operator A (invented)",
+            "kind": "omni",
+            "frequency_mhz": 850,
+            "power_w": 60,
+            "gain_dbi": 9,
+            "x_m": 30.0,
+            "y_m": 8.0,
+            "z_m": 2.6,
+            "v_beamwidth_deg": 12,
+            "length_m": 1.5,
+        },
+    ],
+    BIG_ROOF,
+)
 
 
 def _both(path, monkeypatch):

@@ -40,6 +40,7 @@ import numpy as np
 
 from exposure.assessment.columns import Columns, evaluate_columns
 from exposure.assessment.evaluate import SiteLimits, site_kernel
+from exposure.assessment.zones import filled_from_neighbours
 from exposure.limits import TIERS
 from exposure.models.fused import box_bounds
 
@@ -159,28 +160,11 @@ def ratio_bounds(site, limits: SiteLimits, boxes: np.ndarray) -> tuple[dict[str,
     return total, each
 
 
-def _fill(values: np.ndarray) -> np.ndarray:
-    """NaN entries take the largest of their neighbours, repeatedly (0 where none is found)."""
-    out = values.copy()
-    for _ in range(max(out.shape)):
-        nan = np.isnan(out)
-        if not nan.any():
-            break
-        padded = np.pad(out, 1, constant_values=np.nan)
-        neighbours = np.stack([padded[:-2, 1:-1], padded[2:, 1:-1], padded[1:-1, :-2], padded[1:-1, 2:]])
-        with np.errstate(all="ignore"):
-            best = np.where(np.isnan(neighbours), -np.inf, neighbours).max(axis=0)
-        if not np.isfinite(best[nan]).any():
-            break
-        out = np.where(nan & np.isfinite(best), best, out)
-    return np.nan_to_num(out, nan=0.0)
-
-
 def _estimates(blocks: Blocks, size: int, values: np.ndarray, row: np.ndarray, col: np.ndarray) -> np.ndarray:
     """Bilinear interpolation of the block samples' *values* at the cells (*row*, *col*)."""
     lattice = np.full(blocks.shape, np.nan)
     lattice[blocks.lattice[:, 0], blocks.lattice[:, 1]] = values
-    lattice = _fill(lattice)
+    lattice = np.nan_to_num(filled_from_neighbours(lattice, steps=None), nan=0.0)
     centre_r = (np.arange(blocks.shape[0]) + 0.5) * size - 0.5
     centre_c = (np.arange(blocks.shape[1]) + 0.5) * size - 0.5
     fr = np.interp(row, centre_r, np.arange(blocks.shape[0], dtype=float))

@@ -183,11 +183,30 @@ class Sign:
         }
 
 
-def _filled(values: np.ndarray, steps: int = 2) -> np.ndarray:
-    """NaN cells next to valid ones take their largest neighbour (*steps* times), so that a
-    contour closes around cells on a surface's edge instead of half a cell inside it."""
+def filled_from_neighbours(values: np.ndarray, steps: int | None = 2) -> np.ndarray:
+    r"""NaN cells next to valid ones take their largest neighbour, *steps* times.
+
+    Parameters
+    ----------
+    values : ndarray, 2-d
+        A map with NaN off the surface (or where nothing was sampled).
+    steps : int or None
+        How many rings of NaN cells to fill; None: until none is left that has a valid
+        neighbour.
+
+    Returns
+    -------
+    ndarray
+        A copy. With 2 steps, a contour closes around cells on a surface's edge instead of
+        half a cell inside it (:func:`zone_polygons`); the coarse-to-fine estimates fill their
+        whole lattice (:mod:`exposure.assessment.refine`).
+
+    References
+    ----------
+    None published: grid handling of this project's.
+    """
     out = values.copy()
-    for _ in range(steps):
+    for _ in range(max(out.shape) if steps is None else steps):
         nan = np.isnan(out)
         if not nan.any():
             break
@@ -195,6 +214,8 @@ def _filled(values: np.ndarray, steps: int = 2) -> np.ndarray:
         neighbours = np.stack([padded[:-2, 1:-1], padded[2:, 1:-1], padded[1:-1, :-2], padded[1:-1, 2:]])
         with np.errstate(all="ignore"):
             best = np.where(np.isnan(neighbours), -np.inf, neighbours).max(axis=0)
+        if not np.isfinite(best[nan]).any():
+            break
         out = np.where(nan & np.isfinite(best), best, out)
     return out
 
@@ -231,7 +252,7 @@ def zone_polygons(
 
     if len(x_m) < 2 or len(y_m) < 2:
         return []
-    values = _filled(np.asarray(ratio, dtype=float))
+    values = filled_from_neighbours(np.asarray(ratio, dtype=float))
     finite = values[np.isfinite(values)]
     if finite.size == 0 or not finite.max() > level:
         return []

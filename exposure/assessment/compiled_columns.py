@@ -22,7 +22,7 @@ import math
 import numpy as np
 from numba import njit, prange
 
-from exposure.models.compiled import density_at
+from exposure.models.compiled import density_column
 
 
 @njit(cache=True, parallel=True)
@@ -92,14 +92,19 @@ def column_totals(
         whole = np.zeros((2, n_h))
         spatial = np.zeros((2, n_h))
         kept = np.empty((n_e if want_headroom else 1, n_h))
+        column = np.empty(n_h)
+        column_peak = np.empty(n_h)
         px, py = cx[c], cy[c]
         for e in range(n_e):
             p = params[e]
             highest = 0.0
             average = 0.0
             highest_local = 0.0
+            density_column(p, tables, px, py, z, peak, column)
+            if has_local and not peak:  # the local criterion takes the spatial-peak model
+                density_column(p, tables, px, py, z, not peak, column_peak)
             for h in range(n_h):
-                s = density_at(p, tables, px, py, z[h], peak)
+                s = column[h]
                 if want_headroom:
                     kept[e, h] = s
                 whole[0, h] += s * inverse[0, e]
@@ -107,7 +112,7 @@ def column_totals(
                 highest = max(highest, s)
                 average += s * weights[h]
                 if has_local:
-                    sp = s if peak else density_at(p, tables, px, py, z[h], not peak)
+                    sp = s if peak else column_peak[h]
                     spatial[0, h] += sp * inverse_local[0, e]
                     spatial[1, h] += sp * inverse_local[1, e]
                     highest_local = max(highest_local, sp)

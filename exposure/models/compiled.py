@@ -147,16 +147,26 @@ def _interp_uniform(x, table, offset, n, x0, step):
 
 
 @njit(cache=True, inline="always")
-def _azimuth_part(p, tables, f, r, up, half_length):
-    """The pattern's azimuth part [Np] (dishes take theirs from f, r, up in ``_gain``)."""
+def _horizontal(p, tables, f, r):
+    """The pattern's horizontal attenuation before the zenith fade (sector [Np], tabulated
+    [dB]; 0 for the others): it depends on f and r only, so a column under an untilted antenna
+    computes it once."""
     code = p[PATTERN]
     if code == PATTERN_SECTOR:
-        a = _quadratic(math.atan2(r, f), p[S_H_HALF], p[S_KH], p[S_H_CAP], p[S_H_KNEE])
-        return a * _fade(f * f + r * r, up, half_length)
+        return _quadratic(math.atan2(r, f), p[S_H_HALF], p[S_KH], p[S_H_CAP], p[S_H_KNEE])
     if code == PATTERN_TABULATED:
         phi = math.atan2(r, f) * _DEG
-        h = _interp_uniform(phi, tables, int(p[T_H_OFF]), int(p[T_H_N]), p[T_H_X0], p[T_H_STEP])
-        return h * _fade(f * f + r * r, up, half_length)
+        return _interp_uniform(phi, tables, int(p[T_H_OFF]), int(p[T_H_N]), p[T_H_X0], p[T_H_STEP])
+    return 0.0
+
+
+@njit(cache=True, inline="always")
+def _azimuth_part(p, a_h, f, r, up, half_length):
+    """The pattern's azimuth part: *a_h* (:func:`_horizontal`) faded towards the zenith and nadir
+    (dishes take theirs from f, r, up in ``_gain``)."""
+    code = p[PATTERN]
+    if code in (PATTERN_SECTOR, PATTERN_TABULATED):
+        return a_h * _fade(f * f + r * r, up, half_length)
     return 0.0
 
 
@@ -257,7 +267,7 @@ def _margin(log_rho):
 
 
 @njit(cache=True, inline="always")
-def _synthetic(p, tables, f, r, u, spatial_peak):
+def _synthetic(p, tables, f, r, u, a_h, spatial_peak):
     """``synthetic.synthetic_kernel`` (continuous, capped: the ``auto`` model) at one point."""
     scale, length, r_min = p[SCALE], p[LENGTH], p[R_MIN]
     h2 = f * f + r * r
@@ -265,7 +275,7 @@ def _synthetic(p, tables, f, r, u, spatial_peak):
     d2 = u * u + h2
     log_rho = 0.5 * math.log(d2) - p[LOG_R_FF] if d2 > 0.0 else -math.inf
     weight = min(max(log_rho * (-1.0 / math.log(2.0)), 0.0), 1.0)
-    part = _azimuth_part(p, tables, f, r, u, 0.5 * length)
+    part = _azimuth_part(p, a_h, f, r, u, 0.5 * length)
     d2 = max(d2, r_min * r_min)
     spherical = 0.0
     if weight < 1.0:
@@ -284,25 +294,25 @@ def _synthetic(p, tables, f, r, u, spatial_peak):
 
 
 @njit(cache=True, inline="always")
-def _spherical(p, tables, f, r, u, eirp_scale):
+def _spherical(p, tables, f, r, u, a_h, eirp_scale):
     h2 = f * f + r * r
-    g = _gain(p, tables, _azimuth_part(p, tables, f, r, u, 0.0), f, r, u, math.sqrt(h2))
+    g = _gain(p, tables, _azimuth_part(p, a_h, f, r, u, 0.0), f, r, u, math.sqrt(h2))
     r_min = p[R_MIN]
     return g * eirp_scale / max(h2 + u * u, r_min * r_min)
 
 
 @njit(cache=True, inline="always")
-def _endfire(p, tables, f, r, u):
+def _endfire(p, tables, f, r, u, a_h):
     excess = max(abs(f) - 0.5 * p[LENGTH], 0.0)
-    g = _gain(p, tables, _azimuth_part(p, tables, f, r, u, 0.0), f, r, u, math.sqrt(r * r + f * f))
+    g = _gain(p, tables, _azimuth_part(p, a_h, f, r, u, 0.0), f, r, u, math.sqrt(r * r + f * f))
     r_min = p[R_MIN]
     return g * p[SCALE] / max(excess * excess + r * r + u * u, r_min * r_min)
 
 
 @njit(cache=True, inline="always")
-def _aperture(p, tables, f, r, u):
+def _aperture(p, tables, f, r, u, a_h):
     """``aperture.aperture_kernel`` at one point."""
-    far = _spherical(p, tables, f, r, u, p[SCALE])
+    far = _spherical(p, tables, f, r, u, a_h, p[SCALE])
     if not f < p[AP_R_FF]:
         return far
     r_nf, s_nf, d, r_min = p[AP_R_NF], p[AP_S_NF], p[AP_DIAMETER], p[R_MIN]
@@ -334,15 +344,21 @@ def _density(p, tables, px, py, pz, spatial_peak):
     f -= p[AXES] * ox + p[AXES + 1] * oy + p[AXES + 2] * oz
     r -= p[AXES + 3] * ox + p[AXES + 4] * oy + p[AXES + 5] * oz
     u -= p[AXES + 6] * ox + p[AXES + 7] * oy + p[AXES + 8] * oz
+    return _local_density(p, tables, f, r, u, _horizontal(p, tables, f, r), spatial_peak)
+
+
+@njit(cache=True, inline="always")
+def _local_density(p, tables, f, r, u, a_h, spatial_peak):
+    """:func:`_density` from antenna-frame coordinates and the horizontal attenuation *a_h*."""
     model = p[MODEL]
     if model == MODEL_SYNTHETIC:
-        s = _synthetic(p, tables, f, r, u, spatial_peak)
+        s = _synthetic(p, tables, f, r, u, a_h, spatial_peak)
     elif model == MODEL_ENDFIRE:
-        s = _endfire(p, tables, f, r, u)
+        s = _endfire(p, tables, f, r, u, a_h)
     elif model == MODEL_APERTURE:
-        s = _aperture(p, tables, f, r, u)
+        s = _aperture(p, tables, f, r, u, a_h)
     else:
-        s = _spherical(p, tables, f, r, u, p[SCALE])
+        s = _spherical(p, tables, f, r, u, a_h, p[SCALE])
     induction = p[INDUCTION]
     if induction > 0.0:
         if p[STRUCT_ALONG_FORWARD] > 0.0:
@@ -382,6 +398,54 @@ def density_at(p, tables, px, py, pz, spatial_peak):
     As :func:`exposure.models.power_density` (docs/references.md §§ 3, 7–9).
     """
     return _density(p, tables, px, py, pz, spatial_peak)
+
+
+@njit(cache=True)
+def density_column(p, tables, px, py, z, spatial_peak, out):
+    r"""One emitter's power density at the heights *z* above one plan point, into *out*.
+
+    The same values as :func:`density_at` at each height; where the antenna's forward axis is
+    horizontal (no mechanical tilt, a dish at zero elevation) its forward and right coordinates,
+    and so the pattern's horizontal attenuation, are the same at every height and are computed
+    once.
+
+    Parameters
+    ----------
+    p : ndarray, shape (PARAMS,)
+        One emitter's parameter row.
+    tables : ndarray
+        The emitters' tabulated patterns.
+    px, py : float
+        The plan point [m].
+    z : ndarray
+        Heights, site frame [m].
+    spatial_peak : bool
+        The ``peak`` evaluation.
+    out : ndarray, shape of *z*
+        Out: the densities [W/m²], reflection included.
+
+    Returns
+    -------
+    None
+
+    References
+    ----------
+    As :func:`exposure.models.power_density` (docs/references.md §§ 3, 7–9).
+    """
+    if p[AXES + 2] != 0.0 or p[AXES + 5] != 0.0:  # a tilted forward axis: point by point
+        for h in range(z.shape[0]):
+            out[h] = _density(p, tables, px, py, z[h], spatial_peak)
+        return
+    ox, oy, oz = p[ORIGIN], p[ORIGIN + 1], p[ORIGIN + 2]
+    f = p[AXES] * px + p[AXES + 1] * py + p[AXES + 2] * z[0]
+    r = p[AXES + 3] * px + p[AXES + 4] * py + p[AXES + 5] * z[0]
+    f -= p[AXES] * ox + p[AXES + 1] * oy + p[AXES + 2] * oz
+    r -= p[AXES + 3] * ox + p[AXES + 4] * oy + p[AXES + 5] * oz
+    a_h = _horizontal(p, tables, f, r)
+    for h in range(z.shape[0]):
+        u = p[AXES + 6] * px + p[AXES + 7] * py + p[AXES + 8] * z[h]
+        u -= p[AXES + 6] * ox + p[AXES + 7] * oy + p[AXES + 8] * oz
+        out[h] = _local_density(p, tables, f, r, u, a_h, spatial_peak)
 
 
 @njit(cache=True, parallel=True)

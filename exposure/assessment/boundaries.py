@@ -5,6 +5,7 @@ side, above and below.
 from __future__ import annotations
 
 import math
+from collections.abc import Callable
 
 import numpy as np
 
@@ -40,7 +41,10 @@ def boundary_directions(antenna: Antenna) -> dict[str, list[np.ndarray]]:
 
 
 def emitter_boundaries(
-    antenna: Antenna, limits_w_m2: dict[str, float], reflection: float
+    antenna: Antenna,
+    limits_w_m2: dict[str, float],
+    reflection: float,
+    field: Callable[[np.ndarray], np.ndarray] | None = None,
 ) -> dict[str, dict[str, float]]:
     r"""Front, back, side, above and below boundary distances per tier [m].
 
@@ -51,6 +55,8 @@ def emitter_boundaries(
         The emitter's power-density limit per tier [W/m²].
     reflection : float
         Power reflection factor.
+    field : callable, optional
+        The emitter's prediction as a function of points (:func:`exposure.models.reach.ray_extents`).
 
     Returns
     -------
@@ -65,7 +71,7 @@ def emitter_boundaries(
     limits = [limits_w_m2[tier] for tier in TIERS]
     out: dict[str, dict[str, float]] = {tier: {} for tier in TIERS}
     for name in DIRECTIONS:
-        reach = [ray_extents(antenna, d, limits, reflection) for d in directions[name]]
+        reach = [ray_extents(antenna, d, limits, reflection, field) for d in directions[name]]
         for j, tier in enumerate(TIERS):
             out[tier][name] = max(r[j] for r in reach)
     return out

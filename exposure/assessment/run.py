@@ -21,6 +21,7 @@ from exposure.assessment.evaluate import (
     body_offsets,
     prepared_site,
     reflection_factor,
+    site_kernel,
     site_limits,
 )
 from exposure.assessment.findings import assumptions, findings
@@ -125,9 +126,11 @@ def assess(
         if result.access == "public":
             np.minimum(public_headroom, acc.headroom, out=public_headroom)
 
+    kernel = site_kernel(site)  # the distance searches through the compiled twin where there is one
     emitters = []
     for i, (antenna, emitter) in enumerate(zip(site.antennas, site.emitters, strict=True)):
         limits_i = {tier: float(limits.limit[tier][i]) for tier in TIERS}
+        field = None if kernel is None else kernel.field(i)
         emitters.append(
             EmitterResult(
                 id=antenna.id,
@@ -143,9 +146,10 @@ def assess(
                 limit=LimitUsed(
                     limits_i["general_public"], limits_i["occupational"], bool(limits.derived[i]), site.table.citation()
                 ),
-                boundary_m=emitter_boundaries(antenna, limits_i, factor),
+                boundary_m=emitter_boundaries(antenna, limits_i, factor, field),
                 main_beam_boundary_m={
-                    tier: boresight_distance_to_limit(antenna, limits_i[tier], reflection=factor) for tier in TIERS
+                    tier: boresight_distance_to_limit(antenna, limits_i[tier], reflection=factor, field=field)
+                    for tier in TIERS
                 },
                 azimuth_deg=emitter.azimuth_deg,
                 mech_tilt_deg=emitter.mech_tilt_deg,

@@ -54,7 +54,10 @@ PATTERN_SECTOR, PATTERN_OMNI, PATTERN_DISH, PATTERN_TABULATED = 0, 1, 2, 3
 
 # sector: P + ...
 S_KH, S_KV, S_CAP, S_H_CAP, S_SLA, S_TILT, S_H_HALF, S_H_KNEE, S_V_HALF = range(P, P + 9)
-# omni: kv, sla and tilt share the sector's columns
+# the vertical primitive's constants below the cap, computed once per emitter:
+# sqrt(kv), sqrt(sla / kv) and exp(-sla)
+S_SQRT_KV, S_KNEE, S_FLOOR = range(P + 9, P + 12)
+# omni: kv, sla, tilt and the three constants share the sector's columns
 # dish (ITU-R F.699): P + ...
 D_DL, D_GMAX, D_G1, D_PHI_M, D_PHI_R, D_LARGE, D_BACK, D_SIDE = range(P, P + 8)
 # tabulated (envelope rule): offsets into the shared table and the grids' shape
@@ -81,6 +84,42 @@ _ERF_A0, _ERF_A1, _ERF_A2, _ERF_A3, _ERF_A4 = 1.061405429, -1.453152027, 1.42141
 _HALF_SQRT_PI = 0.5 * math.sqrt(math.pi)
 _DEG = 180.0 / math.pi
 _FADE = 1.0 / math.cos(math.radians(45.0)) ** 2
+
+
+# arctan(y) = y * sum(_ATAN[i] * y^(2i)) for |y| <= tan(pi/8): this project's Chebyshev fit of
+# degree 8 in y^2 (4,000 Chebyshev nodes, converted to powers); absolute error under 2e-14,
+# tested against the C library's atan in tests/models/test_compiled.py
+_ATAN = (
+    0.9999999999999744,
+    -0.3333333333087258,
+    0.19999999613322594,
+    -0.1428569081549502,
+    0.11110393983593417,
+    -0.09078502851992255,
+    0.07564464426642627,
+    -0.05877227599142255,
+    0.03070201008366025,
+)
+_A0, _A1, _A2, _A3, _A4, _A5, _A6, _A7, _A8 = _ATAN
+_TAN_PI_8 = math.tan(math.pi / 8.0)
+_TAN_3PI_8 = math.tan(3.0 * math.pi / 8.0)
+
+
+@njit(cache=True, inline="always")
+def _atan(x):
+    """arctan(x) [rad] within 2e-14: the C library's atan costs several times more per call, and
+    the synthetic model calls it three times a pair. Reduced to |y| <= tan(pi/8) by
+    atan(x) = pi/4 + atan((x - 1)/(x + 1)) and atan(x) = pi/2 - atan(1/x) (x > 0; odd)."""
+    a = abs(x)
+    if a > _TAN_3PI_8:
+        base, y = 0.5 * math.pi, -1.0 / a
+    elif a > _TAN_PI_8:
+        base, y = 0.25 * math.pi, (a - 1.0) / (a + 1.0)
+    else:
+        base, y = 0.0, a
+    z = y * y
+    poly = ((((((((_A8 * z + _A7) * z + _A6) * z + _A5) * z + _A4) * z + _A3) * z + _A2) * z + _A1) * z) + _A0
+    return math.copysign(base + y * poly, x)
 
 
 @njit(cache=True, inline="always")
@@ -190,11 +229,11 @@ def _gain(p, tables, part, f, r, up, horizontal):
     """Relative gain (``Pattern.gain_at``)."""
     code = p[PATTERN]
     if code == PATTERN_SECTOR:
-        t = math.atan(up / (horizontal + _TINY_M)) + p[S_TILT]
+        t = _atan(up / (horizontal + _TINY_M)) + p[S_TILT]
         t = _quadratic(t, p[S_V_HALF], p[S_KV], p[S_SLA], math.inf) + part
         return _exp32(-min(t, p[S_CAP]))
     if code == PATTERN_OMNI:
-        t = math.atan(up / (horizontal + _TINY_M)) + p[S_TILT]
+        t = _atan(up / (horizontal + _TINY_M)) + p[S_TILT]
         return _exp32(-min(p[S_KV] * t * t, p[S_SLA]))
     if code == PATTERN_DISH:
         return _f699(math.atan2(math.hypot(r, up), f) * _DEG, p)
@@ -216,8 +255,9 @@ def _cumulative(tables, base, n, k, alpha, step):
 
 
 @njit(cache=True, inline="always")
-def _elevation_integral(p, tables, part, low, high):
-    """``Pattern.elevation_integral`` at one point (sector, omni, tabulated envelope)."""
+def _elevation_integral(p, tables, part, e_part, low, high):
+    """``Pattern.elevation_integral`` at one point (sector, omni, tabulated envelope); *e_part* is
+    ``_exp32(-part)`` where the caller has it, else negative."""
     code = p[PATTERN]
     if code == PATTERN_TABULATED:
         levels = p[T_LEVELS]
@@ -229,14 +269,15 @@ def _elevation_integral(p, tables, part, low, high):
         step = p[T_ALPHA_STEP]
         return _cumulative(tables, base, n, k, high, step) - _cumulative(tables, base, n, k, low, step)
     kv, sla, tilt = p[S_KV], p[S_SLA], p[S_TILT]
-    sqrt_k = math.sqrt(kv)
+    sqrt_k = p[S_SQRT_KV]
     if code == PATTERN_OMNI:
-        knee, floor = math.sqrt(sla / kv), math.exp(-sla)
+        knee, floor = p[S_KNEE], p[S_FLOOR]
         return _primitive(high + tilt, sqrt_k, knee, floor, 0.0) - _primitive(low + tilt, sqrt_k, knee, floor, 0.0)
     cap = p[S_CAP]
-    e_part = _exp32(-part)
+    if e_part < 0.0:
+        e_part = _exp32(-part)
     if part <= cap - sla:
-        knee, floor = math.sqrt(sla / kv), math.exp(-sla)
+        knee, floor = p[S_KNEE], p[S_FLOOR]
     else:
         knee = math.sqrt(min(cap - part, sla) / kv)
         floor = max(math.exp(-cap) / e_part, math.exp(-sla))
@@ -267,7 +308,7 @@ def _margin(log_rho):
 
 
 @njit(cache=True, inline="always")
-def _synthetic(p, tables, f, r, u, a_h, spatial_peak):
+def _synthetic(p, tables, f, r, u, a_h, e_h, spatial_peak):
     """``synthetic.synthetic_kernel`` (continuous, capped: the ``auto`` model) at one point."""
     scale, length, r_min = p[SCALE], p[LENGTH], p[R_MIN]
     h2 = f * f + r * r
@@ -283,9 +324,10 @@ def _synthetic(p, tables, f, r, u, a_h, spatial_peak):
         if weight <= 0.0:
             return spherical
     h = max(horizontal, r_min)
-    low = math.atan((u - 0.5 * length) / h)
-    high = math.atan((u + 0.5 * length) / h)
-    result = _elevation_integral(p, tables, part, low, high) * (scale / length) / h
+    low = _atan((u - 0.5 * length) / h)
+    high = _atan((u + 0.5 * length) / h)
+    e_part = e_h if part == a_h else -1.0  # no zenith fade here: the column's exp(-a_h) serves
+    result = _elevation_integral(p, tables, part, e_part, low, high) * (scale / length) / h
     if spatial_peak:
         result *= _margin(log_rho)
     if weight < 1.0:
@@ -344,15 +386,16 @@ def _density(p, tables, px, py, pz, spatial_peak):
     f -= p[AXES] * ox + p[AXES + 1] * oy + p[AXES + 2] * oz
     r -= p[AXES + 3] * ox + p[AXES + 4] * oy + p[AXES + 5] * oz
     u -= p[AXES + 6] * ox + p[AXES + 7] * oy + p[AXES + 8] * oz
-    return _local_density(p, tables, f, r, u, _horizontal(p, tables, f, r), spatial_peak)
+    return _local_density(p, tables, f, r, u, _horizontal(p, tables, f, r), -1.0, spatial_peak)
 
 
 @njit(cache=True, inline="always")
-def _local_density(p, tables, f, r, u, a_h, spatial_peak):
-    """:func:`_density` from antenna-frame coordinates and the horizontal attenuation *a_h*."""
+def _local_density(p, tables, f, r, u, a_h, e_h, spatial_peak):
+    """:func:`_density` from antenna-frame coordinates and the horizontal attenuation *a_h*
+    (*e_h*: ``_exp32(-a_h)`` where the caller has it, else negative)."""
     model = p[MODEL]
     if model == MODEL_SYNTHETIC:
-        s = _synthetic(p, tables, f, r, u, a_h, spatial_peak)
+        s = _synthetic(p, tables, f, r, u, a_h, e_h, spatial_peak)
     elif model == MODEL_ENDFIRE:
         s = _endfire(p, tables, f, r, u, a_h)
     elif model == MODEL_APERTURE:
@@ -442,10 +485,11 @@ def density_column(p, tables, px, py, z, spatial_peak, out):
     f -= p[AXES] * ox + p[AXES + 1] * oy + p[AXES + 2] * oz
     r -= p[AXES + 3] * ox + p[AXES + 4] * oy + p[AXES + 5] * oz
     a_h = _horizontal(p, tables, f, r)
+    e_h = _exp32(-a_h) if p[MODEL] == MODEL_SYNTHETIC and p[PATTERN] == PATTERN_SECTOR else -1.0
     for h in range(z.shape[0]):
         u = p[AXES + 6] * px + p[AXES + 7] * py + p[AXES + 8] * z[h]
         u -= p[AXES + 6] * ox + p[AXES + 7] * oy + p[AXES + 8] * oz
-        out[h] = _local_density(p, tables, f, r, u, a_h, spatial_peak)
+        out[h] = _local_density(p, tables, f, r, u, a_h, e_h, spatial_peak)
 
 
 @njit(cache=True, parallel=True)
@@ -477,3 +521,32 @@ def densities(params, tables, x, y, z, spatial_peak, out):
         px, py, pz = x[i], y[i], z[i]
         for e in range(n_e):
             out[e, i] = density_at(params[e], tables, px, py, pz, spatial_peak)
+
+
+@njit(cache=True)
+def emitter_densities(p, tables, x, y, z, spatial_peak, out):
+    """One emitter's power density at each point, one thread: ``out[i]`` [W/m²].
+
+    Parameters
+    ----------
+    p : ndarray, shape (PARAMS,)
+        The emitter's parameter row.
+    tables : ndarray
+        The emitters' tabulated patterns, one flat array.
+    x, y, z : ndarray, shape (n,)
+        Site-frame points [m].
+    spatial_peak : bool
+        The ``peak`` evaluation.
+    out : ndarray, shape (n,)
+
+    Returns
+    -------
+    None
+        The densities are written into *out*.
+
+    References
+    ----------
+    As :func:`exposure.models.power_density` (docs/references.md §§ 3, 7–9).
+    """
+    for i in range(x.shape[0]):
+        out[i] = density_at(p, tables, x[i], y[i], z[i], spatial_peak)

@@ -20,6 +20,7 @@ from exposure.antenna import Antenna
 from exposure.errors import InputError
 from exposure.models.density import (
     _is_spatial_peak,
+    beam_direction,
     model_for,
     power_density,
     power_density_along_beam,
@@ -95,6 +96,7 @@ def boresight_distance_to_limit(
     model: str = "auto",
     reflection: str | float = "none",
     evaluation: str = "peak",
+    field: Callable[[np.ndarray], np.ndarray] | None = None,
 ) -> float:
     r"""Distance along the main beam beyond which the prediction stays below a limit [m].
 
@@ -106,6 +108,10 @@ def boresight_distance_to_limit(
         Power-density limit [W/m²], > 0.
     model, reflection, evaluation
         As for :func:`power_density`.
+    field : callable, optional
+        The same prediction as a function of site-frame points (n, 3) -> (n,) [W/m²], such as
+        the compiled twin :meth:`exposure.models.fused.FusedKernel.field`; by default the
+        numpy reference :func:`power_density_along_beam`.
 
     Returns
     -------
@@ -137,7 +143,11 @@ def boresight_distance_to_limit(
         return 0.0
 
     def along(d):
+        if field is not None:
+            return field(origin + d[:, None] * direction)
         return power_density_along_beam(antenna, d, model=model, reflection=reflection, evaluation=evaluation)
+
+    origin, direction = np.asarray(antenna.position_m, dtype=float), beam_direction(antenna)
 
     r_lo = minimum_distance_m(antenna)
     r_hi = max(math.sqrt(factor * antenna.avg_eirp_w / (4.0 * math.pi * limit)) * 1.01, 2.0 * r_lo)
@@ -152,7 +162,11 @@ def boresight_distance_to_limit(
 
 
 def ray_extents(
-    antenna: Antenna, direction: np.ndarray, limits_w_m2: Sequence[float], reflection: float
+    antenna: Antenna,
+    direction: np.ndarray,
+    limits_w_m2: Sequence[float],
+    reflection: float,
+    field: Callable[[np.ndarray], np.ndarray] | None = None,
 ) -> list[float]:
     r"""Largest distance along *direction* at which the emitter alone reaches each limit [m].
 
@@ -165,6 +179,10 @@ def ray_extents(
         Power-density limits [W/m²]; one scan serves them all.
     reflection : float
         Power reflection factor (:func:`exposure.models.reflection_factor`).
+    field : callable, optional
+        The emitter's ``auto`` prediction with that factor as a function of site-frame points
+        (n, 3) -> (n,) [W/m²], such as :meth:`exposure.models.fused.FusedKernel.field`; by
+        default the numpy reference :func:`power_density`.
 
     Returns
     -------
@@ -190,6 +208,7 @@ def ray_extents(
     origin = np.asarray(antenna.position_m)
 
     def along(r: np.ndarray) -> np.ndarray:
-        return power_density(antenna, origin + r[:, None] * direction, reflection=reflection)
+        points = origin + r[:, None] * direction
+        return power_density(antenna, points, reflection=reflection) if field is None else field(points)
 
     return last_crossings(along, scan, limits_w_m2, refine=32, tolerance=1e-3)

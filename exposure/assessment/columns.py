@@ -49,7 +49,17 @@ class Columns:
     ratio: dict[str, np.ndarray]  # tier -> reduced total per column
     at_z: dict[str, np.ndarray]  # tier -> height of the column's peak (its base for averages)
     local_governs: dict[str, np.ndarray]  # tier -> the local criterion gives the ratio
-    shares: tuple | None = None  # (column indices above the public limit, tier -> (emitters, columns) shares)
+    # the shares kept where the public limit is exceeded, in chunks as evaluated (joined only
+    # where needed: at many emitters they are the largest arrays of an assessment):
+    # (column indices, tier -> (emitters, len(indices)) float32 shares of each emitter's own limit)
+    shares: tuple[tuple[np.ndarray, dict[str, np.ndarray]], ...] = ()
+
+    def joined_shares(self) -> tuple[np.ndarray, dict[str, np.ndarray]] | None:
+        """The kept shares in one piece: (column indices, tier -> (emitters, columns)), or None."""
+        if not self.shares:
+            return None
+        index = np.concatenate([i for i, _ in self.shares])
+        return index, {t: np.concatenate([part[t] for _, part in self.shares], axis=1) for t in TIERS}
 
 
 def element_cells(
@@ -182,9 +192,7 @@ def evaluate_columns(
                         tier,
                     ).astype(np.float32)
                 )
-    shares = None
-    if kept_index:
-        shares = (np.concatenate(kept_index), {t: np.concatenate(kept[t], axis=1) for t in TIERS})
+    shares = tuple((index, {t: kept[t][k] for t in TIERS}) for k, index in enumerate(kept_index))
     return Columns(cx, cy, ratio, at_z, local_governs, shares)
 
 
@@ -263,9 +271,7 @@ def _compiled_columns(kernel, site, surface, limits: SiteLimits, offsets, cx, cy
                 if has_local:
                     np.maximum(share, each_local[:, above] * inverse_local[k][:, None], out=share)
                 kept[tier].append(share.astype(np.float32))
-    shares = None
-    if kept_index:
-        shares = (np.concatenate(kept_index), {t: np.concatenate(kept[t], axis=1) for t in TIERS})
+    shares = tuple((index, {t: kept[t][k] for t in TIERS}) for k, index in enumerate(kept_index))
     return Columns(cx, cy, ratio, at_z, local_governs, shares)
 
 
@@ -294,7 +300,9 @@ def hot_spots(surface, antennas: Sequence[Antenna], body_height_m: float) -> tup
     (log-spaced), and the point of the outline nearest below it where people can stand
     under the antenna (its lowest part above their heads), wherever they fall on the
     surface. Evaluated besides the grid so that a narrow zone in front of or below an
-    antenna is never lost between cell centres (conservative).
+    antenna is never lost between cell centres (conservative). Each point is given once:
+    emitters sharing a position and azimuth (the bands of one antenna) share their line, so the
+    points grow with the antennas' distinct lines, not the emitters.
 
     References
     ----------
@@ -316,6 +324,10 @@ def hot_spots(surface, antennas: Sequence[Antenna], body_height_m: float) -> tup
             xs.append(nx)
             ys.append(ny)
     x, y = np.array(xs), np.array(ys)
+    # each point once: the bands of one antenna (same position and azimuth) share their line
+    _, first = np.unique(np.column_stack([x, y]), axis=0, return_index=True)
+    first.sort()
+    x, y = x[first], y[first]
     keep = contains(polygon, x, y)
     return x[keep], y[keep]
 

@@ -272,18 +272,13 @@ def _assemble(parts, n: int, z_low: float, blocks: Blocks, size: int, bound, row
     ratio = {t: np.full(n, np.nan) for t in TIERS}
     at_z = {t: np.full(n, z_low) for t in TIERS}
     governs = {t: np.zeros(n, dtype=bool) for t in TIERS}
-    kept_index: list[np.ndarray] = []
-    kept: dict[str, list[np.ndarray]] = {t: [] for t in TIERS}
+    shares = []
     for cells, columns in parts:
         for t in TIERS:
             ratio[t][cells] = columns.ratio[t]
             at_z[t][cells] = columns.at_z[t]
             governs[t][cells] = columns.local_governs[t]
-        if columns.shares is not None:
-            index, shares = columns.shares
-            kept_index.append(cells[index])
-            for t in TIERS:
-                kept[t].append(shares[t])
+        shares.extend((cells[index], part) for index, part in columns.shares)
     missing = np.isnan(ratio[TIERS[0]])
     if missing.any():
         row, col = rowcol
@@ -291,7 +286,4 @@ def _assemble(parts, n: int, z_low: float, blocks: Blocks, size: int, bound, row
         for t in TIERS:
             estimate = _estimates(blocks, size, sample_values[t], row[missing], col[missing])
             ratio[t][missing] = np.minimum(estimate, bound[t][blocks.of_cell[missing]])
-    shares = None
-    if kept_index:
-        shares = (np.concatenate(kept_index), {t: np.concatenate(kept[t], axis=1) for t in TIERS})
-    return Columns(cx, cy, ratio, at_z, governs, shares)
+    return Columns(cx, cy, ratio, at_z, governs, tuple(shares))

@@ -171,19 +171,23 @@ def surface_zones(site, surface, grid, cells: Columns, spots: Columns, limits: S
         places[tier] = {
             "total": np.concatenate([cells.ratio[tier][where], spots.ratio[tier][hot]]),
             "z": np.concatenate([cells.at_z[tier][where], spots.at_z[tier][hot]]),
-            "shares": np.full((n_e, len(x)), np.nan),
+            "shares": np.empty((n_e, len(x)), dtype=np.float32),  # single precision, as the kept shares
         }
     # the shares the evaluations kept (cells and hot spots above the public limit)
+    have = np.zeros(len(x), dtype=bool)
     for columns, chosen, first in ((cells, where, 0), (spots, np.flatnonzero(hot), len(where))):
-        if columns.shares is None:
-            continue
-        index, kept = columns.shares
         position = np.full(len(columns.x), -1)
         position[chosen] = first + np.arange(len(chosen))
-        found = position[index] >= 0
-        for tier in TIERS:
-            places[tier]["shares"][:, position[index[found]]] = kept[tier][:, found]
-    missing = np.flatnonzero(np.isnan(places["general_public"]["shares"][0]))
+        for index, kept in columns.shares:
+            found = position[index] >= 0
+            at = position[index[found]]
+            have[at] = True
+            every = bool(found.all())
+            for tier in TIERS:
+                target, source = places[tier]["shares"], kept[tier]
+                for e in range(n_e):  # row by row: numpy scatters one axis several times faster than two
+                    target[e, at] = source[e] if every else source[e, found]
+    missing = np.flatnonzero(~have)
     evaluation = site.evaluation
     chunk = max(1, POINT_BUDGET // max(1, n_e * len(offsets)))
     for start in range(0, len(missing), chunk):

@@ -364,7 +364,9 @@ def zones_of_surface(
                 inside = contains(polygon.buffer(cell_m), x, y)
             if not inside.any():
                 inside = np.arange(len(x)) == int(np.argmax(total))  # at worst, the surface's own maximum
-            shares = places[tier]["shares"][:, inside]
+            shares = places[tier]["shares"]
+            if not inside.all():  # a copy only where the zone holds part of the places
+                shares = shares[:, inside]
             k = np.flatnonzero(inside)[int(np.argmax(total[inside]))]
             where = (float(x[k]), float(y[k]), float(places[tier]["z"][k]))
             emitter_max = shares.max(axis=1)

@@ -151,6 +151,77 @@ def raster(fig, dpi: int = DPI, pad_inches: float = 0.03) -> Encoded:
     return image, (x1 - x0) / dpi, (y1 - y0) / dpi
 
 
+def arrange(fig, ax, bar=None, legend=None) -> None:
+    r"""Place *ax* (its aspect set), its vertical colour *bar* and the figure's *legend* once, from
+    the sizes of their texts: what matplotlib's constrained layout gives these figures, for a
+    fraction of the time (it measures every text of the figure twice before drawing it).
+
+    The axes take the figure's room left after the margins their tick labels, axis labels,
+    colour bar and legend need, shrunk to their aspect and kept at the lower left; the bar
+    stands beside them, as tall, and the legend is centred under them at the figure's bottom.
+    The room left over at the top and right is cropped with the rest (:func:`raster`, :func:`png`).
+    """
+    from matplotlib.font_manager import FontProperties
+
+    renderer = fig.canvas.get_renderer()
+    dpi = fig.dpi
+    width_in, height_in = fig.get_size_inches()
+    pt = 1.0 / 72.0
+
+    def size(text: str, points: float) -> tuple[float, float]:
+        if not text:
+            return 0.0, 0.0
+        w, h, _ = renderer.get_text_width_height_descent(text, FontProperties(size=points), ismath=False)
+        return w / dpi, h / dpi
+
+    def ticks(axis) -> list[str]:
+        low, high = sorted(axis.get_view_interval())
+        locs = [
+            v for v in axis.get_majorticklocs() if low - 1e-9 * abs(high - low) <= v <= high + 1e-9 * abs(high - low)
+        ]
+        return list(axis.get_major_formatter().format_ticks(locs)) + [axis.get_offset_text().get_text()]
+
+    def label_points(axis) -> float:
+        return float(axis.get_ticklabels()[0].get_fontsize()) if axis.get_ticklabels() else 6.5
+
+    def side(axis, across: bool) -> float:
+        """The room an axis's ticks and label take beside the axes [in]."""
+        tick = (axis.get_major_ticks()[0].get_tick_padding() if axis.get_major_ticks() else 7.0) * pt
+        points = label_points(axis)
+        labels = [size(t, points) for t in ticks(axis)]
+        extent = max((w if across else h for w, h in labels), default=0.0)
+        title = axis.label
+        title_h = size(title.get_text(), title.get_fontsize())[1]
+        return tick + extent + (axis.labelpad * pt + title_h if title.get_text() else 0.0) + 0.04
+
+    left = side(ax.yaxis, across=True)
+    bottom = side(ax.xaxis, across=False)
+    top = 0.5 * size("0", label_points(ax.yaxis))[1] + 0.04
+    right = 0.5 * size("0", label_points(ax.xaxis))[0] + 0.04
+    if bar is not None:
+        bar_w, bar_gap = 0.12, 0.12
+        right = bar_gap + bar_w + side(bar.ax.yaxis, across=True)
+    if legend is not None:
+        legend_h = legend.get_window_extent(renderer).height / dpi
+        bottom += legend_h + 0.1
+    room_w, room_h = max(width_in - left - right, 0.1), max(height_in - bottom - top, 0.1)
+    x0, x1 = ax.get_xlim()
+    y0, y1 = ax.get_ylim()
+    aspect = ax.get_aspect()
+    box_w, box_h = room_w, room_h
+    if aspect != "auto":
+        ratio = float(aspect) * abs(y1 - y0) / max(abs(x1 - x0), 1e-300)
+        box_w, box_h = min(room_w, room_h / ratio), min(room_h, room_w * ratio)
+    ax.set_anchor("SW")
+    ax.set_position((left / width_in, bottom / height_in, box_w / width_in, box_h / height_in))
+    if bar is not None:
+        bar.ax.set_position(
+            ((left + box_w + bar_gap) / width_in, bottom / height_in, bar_w / width_in, box_h / height_in)
+        )
+    if legend is not None:
+        legend.set_bbox_to_anchor(((left + 0.5 * box_w) / width_in, 0.0), transform=fig.transFigure)
+
+
 def png_at(dpi: int) -> Callable[[Any], Encoded]:
     """A PNG encoder at *dpi* (the exports' 300 dpi, say)."""
     return lambda fig: png(fig, dpi, compress_level=6)
@@ -220,7 +291,12 @@ def contour(ax, x, y, values, level: float, style: dict, zorder: float, casing: 
 
 
 def colourbar(fig, mappable, ax, orientation: str = "vertical", label: str | None = None):
-    bar = fig.colorbar(mappable, ax=ax, orientation=orientation, extend="both", fraction=0.035, pad=0.02)
+    """The colour bar beside *ax*: in axes of its own, which :func:`arrange` places (vertical),
+    or taken from *ax*'s room by matplotlib (horizontal)."""
+    if orientation == "vertical":
+        bar = fig.colorbar(mappable, cax=fig.add_axes((0.0, 0.0, 0.01, 0.01)), extend="both")
+    else:
+        bar = fig.colorbar(mappable, ax=ax, orientation=orientation, extend="both", fraction=0.035, pad=0.02)
     low, high = mappable.norm.vmin, mappable.norm.vmax
     ticks = [10.0**k for k in range(round(math.log10(low)), round(math.log10(high)) + 1)]
     bar.set_ticks(ticks)

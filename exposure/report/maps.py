@@ -23,6 +23,7 @@ from exposure.report.figure import (
     ELEMENT_ZONE_HATCH,
     OCC_COLOUR,
     Encoded,
+    arrange,
     colour_range,
     colourbar,
     contour,
@@ -149,7 +150,6 @@ def _plan_map(assessment, width_in: float, max_height_in: float, region, legend:
     width_in, height_in, _ = _map_size(xlim, ylim, width_in, max_height_in)
 
     fig = new_figure(width_in, height_in)
-    fig.set_layout_engine("constrained")
     ax = fig.add_subplot()
     pct_range = colour_range(assessment)
     colour_norm = norm(pct_range)
@@ -306,8 +306,9 @@ def _plan_map(assessment, width_in: float, max_height_in: float, region, legend:
         ax.set_ylabel("y, north [m]", fontsize=7)
     ax.tick_params(labelsize=6.5)
     ax.grid(True, color="#c8c8c8", linewidth=0.3, zorder=0)
+    bar = None
     if mesh is not None:
-        colourbar(fig, mesh, ax)
+        bar = colourbar(fig, mesh, ax)
     handles: list[Artist] = [
         Line2D([], [], color="black", linewidth=1.3, label="100 % of the general-public limit"),
         Line2D([], [], color=OCC_COLOUR, linewidth=1.6, label="100 % of the occupational limit"),
@@ -374,6 +375,8 @@ def _plan_map(assessment, width_in: float, max_height_in: float, region, legend:
                     label=ACCESS_LABEL[access],
                 )
             )
+    key = None
     if legend:
-        fig.legend(handles=handles, loc="outside lower center", ncol=3, fontsize=6.5, frameon=False, handlelength=2.4)
+        key = fig.legend(handles=handles, loc="lower center", ncol=3, fontsize=6.5, frameon=False, handlelength=2.4)
+    arrange(fig, ax, bar, key)
     return *encode(fig), drawn

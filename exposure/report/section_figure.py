@@ -17,6 +17,7 @@ from exposure.report.figure import (
     OCC_COLOUR,
     OCC_LINE,
     Encoded,
+    arrange,
     colour_range,
     colourbar,
     contour,
@@ -161,7 +162,6 @@ def _section_figure(s_m, z_m, ratio, *, emitter, assessment, body_height_m, widt
         axes_w = min(axes_w, axes_h * s_span / (z_span * exaggeration))
     height_in = axes_h + 1.05
     fig = new_figure(width_in, height_in)
-    fig.set_layout_engine("constrained")
     ax = fig.add_subplot()
     pct_range = colour_range(assessment)
     mesh = ax.pcolormesh(
@@ -239,7 +239,7 @@ def _section_figure(s_m, z_m, ratio, *, emitter, assessment, body_height_m, widt
     ax.set_xlabel(f"distance along azimuth {azimuth:g}° from {emitter.id} [m]  (negative: behind)", fontsize=7)
     ax.set_ylabel("height, site frame [m]", fontsize=7)
     ax.tick_params(labelsize=6.5)
-    colourbar(fig, mesh, ax, label="% of the general-public limit")
+    bar = colourbar(fig, mesh, ax, label="% of the general-public limit")
     handles = [
         Line2D([], [], color="black", linewidth=1.3, label="100 % general public"),
         Line2D([], [], color=OCC_COLOUR, linewidth=1.6, label="100 % occupational"),
@@ -253,5 +253,6 @@ def _section_figure(s_m, z_m, ratio, *, emitter, assessment, body_height_m, widt
             label=f"{body_height_m:g} m above the surface",
         ),
     ]
-    fig.legend(handles=handles, loc="outside lower center", ncol=4, fontsize=6.5, frameon=False)
+    key = fig.legend(handles=handles, loc="lower center", ncol=4, fontsize=6.5, frameon=False)
+    arrange(fig, ax, bar, key)
     return *encode(fig), {"exaggeration": exaggeration, "worst": worst, "drawn": drawn}

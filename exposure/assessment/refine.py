@@ -272,7 +272,7 @@ def _assemble(parts, n: int, z_low: float, blocks: Blocks, size: int, bound, row
     ratio = {t: np.full(n, np.nan) for t in TIERS}
     at_z = {t: np.full(n, z_low) for t in TIERS}
     governs = {t: np.zeros(n, dtype=bool) for t in TIERS}
-    shares = []
+    shares: list[tuple[np.ndarray, dict[str, np.ndarray]]] = []
     for cells, columns in parts:
         for t in TIERS:
             ratio[t][cells] = columns.ratio[t]

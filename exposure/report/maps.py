@@ -375,8 +375,10 @@ def _plan_map(assessment, width_in: float, max_height_in: float, region, legend:
                     label=ACCESS_LABEL[access],
                 )
             )
-    key = None
+    legend_box = None
     if legend:
-        key = fig.legend(handles=handles, loc="lower center", ncol=3, fontsize=6.5, frameon=False, handlelength=2.4)
-    arrange(fig, ax, bar, key)
+        legend_box = fig.legend(
+            handles=handles, loc="lower center", ncol=3, fontsize=6.5, frameon=False, handlelength=2.4
+        )
+    arrange(fig, ax, bar, legend_box)
     return *encode(fig), drawn

@@ -40,6 +40,7 @@ import math
 from numba import njit, prange
 
 from exposure.models import compiled as c
+from exposure.models.kernel_math import _quadratic
 
 _MARGIN_MAX = 10.0**0.3  # the spatial-peak margin's largest value, +3 dB
 _SAFETY = 1.0 + 1e-6  # the single-precision exponential's rounding, and more
@@ -108,8 +109,8 @@ def _gain_bound(p, f_lo, f_hi, r_lo, r_hi, u_lo, u_hi, h_lo, h_hi, aperture, hal
     off = _least_abs(low + tilt, high + tilt)
     if code == c.PATTERN_OMNI:
         return math.exp(-min(p[c.S_KV] * off * off, p[c.S_SLA])) * _SAFETY
-    vertical = c._quadratic(off, p[c.S_V_HALF], p[c.S_KV], p[c.S_SLA], math.inf)
-    horizontal = c._quadratic(
+    vertical = _quadratic(off, p[c.S_V_HALF], p[c.S_KV], p[c.S_SLA], math.inf)
+    horizontal = _quadratic(
         _least_azimuth(f_lo, f_hi, r_lo, r_hi), p[c.S_H_HALF], p[c.S_KH], p[c.S_H_CAP], p[c.S_H_KNEE]
     )
     v_hi = max(max(abs(u_lo), abs(u_hi)) - half_length, 0.0)

@@ -157,13 +157,13 @@ def test_projection_rule_is_refused():
 
 
 def test_the_kernels_arctan_matches_the_c_library():
-    """The kernel's own arctan (a polynomial fit, exposure.models.compiled._atan) against the C
+    """The kernel's own arctan (a polynomial fit, exposure.models.kernel_math._atan) against the C
     library's (``math.atan``) from 1e-8 to 1e8 in magnitude, both signs, and at 0 and ±inf."""
     import math
 
     from numba import njit
 
-    from exposure.models.compiled import _atan
+    from exposure.models.kernel_math import _atan
 
     @njit
     def each(x, out):

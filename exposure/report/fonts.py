@@ -49,7 +49,16 @@ def register_fonts() -> None:
     addMapping(FONT, 1, 0, f"{FONT}-Bold")
     addMapping(FONT, 0, 1, f"{FONT}-Oblique")
     addMapping(FONT, 1, 1, f"{FONT}-BoldOblique")
-    pdfmetrics.registerFont(TTFont(FALLBACK_FONT, str(FALLBACK_FILE)))
+
+
+def _register_fallback() -> None:
+    """Register the fallback font with reportlab the first time a text needs it (reading it
+    costs a tenth of a second that most worksheets never need)."""
+    from reportlab.pdfbase import pdfmetrics
+    from reportlab.pdfbase.ttfonts import TTFont
+
+    if FALLBACK_FONT not in pdfmetrics.getRegisteredFontNames():
+        pdfmetrics.registerFont(TTFont(FALLBACK_FONT, str(FALLBACK_FILE)))
 
 
 @functools.cache
@@ -100,6 +109,8 @@ def markup(value) -> str:
         else:
             font = _fallback(char)
             piece = char if font else _code_point(char)
+            if font:
+                _register_fallback()
         if font != run_font:
             flush()
             run_font = font

@@ -27,9 +27,8 @@ VERDICT_TINTS = {"compliant": "#eef5ef", "verify-by-measurement": "#fbf4e4", "mi
 
 
 def picture(image, width: float, height: float):
-    """A flowable of a figure drawn by :func:`exposure.report.figure.raster` (a PIL image), centred,
-    *width* × *height* [points]; reportlab stores its pixels once, zlib-compressed."""
-    from reportlab.lib.utils import ImageReader
+    """A flowable of a figure drawn by :func:`exposure.report.figure.raster`, centred, *width* ×
+    *height* [points]: its pixels go into the PDF as encoded, once however often it is drawn."""
     from reportlab.platypus import Flowable
 
     class Picture(Flowable):
@@ -42,9 +41,48 @@ def picture(image, width: float, height: float):
             return self.width, self.height
 
         def draw(self) -> None:
-            self.canv.drawImage(ImageReader(image), 0, 0, self.width, self.height)
+            draw_flate_image(self.canv, image, self.width, self.height)
 
     return Picture()
+
+
+def draw_flate_image(canvas, image, width: float, height: float) -> None:
+    """Draw a :class:`~exposure.report.figure.FlateImage` at the origin, *width* × *height*
+    [points], as one image XObject of the document (what ``Canvas.drawImage`` does for an image
+    it compresses itself; reportlab has no public call for pixels already encoded)."""
+    import hashlib
+
+    from reportlab.pdfbase.pdfdoc import PDFDictionary, PDFName, PDFObject, PDFStream
+
+    class ImageObject(PDFObject):
+        def format(self, document):
+            stream = PDFStream(content=image.data)
+            fields = stream.dictionary
+            fields["Type"] = PDFName("XObject")
+            fields["Subtype"] = PDFName("Image")
+            fields["Width"] = image.width
+            fields["Height"] = image.height
+            fields["BitsPerComponent"] = 8
+            fields["ColorSpace"] = PDFName("DeviceRGB")
+            fields["Filter"] = PDFName("FlateDecode")  # one filter: its parameters a dictionary, not an array
+            fields["DecodeParms"] = PDFDictionary(
+                {"Predictor": 12, "Colors": 3, "BitsPerComponent": 8, "Columns": image.width}
+            )
+            return stream.format(document)
+
+    name = "Figure" + hashlib.blake2b(image.data, digest_size=10).hexdigest()
+    document = canvas._doc
+    registered = document.getXObjectName(name)
+    if registered not in document.idToObject:
+        stored = ImageObject()
+        document.Reference(stored, registered)
+        document.addForm(name, stored)
+    canvas.saveState()
+    canvas.scale(width, height)
+    canvas._code.append(f"/{registered} Do")
+    canvas.restoreState()
+    canvas._formsinuse.append(name)
+    canvas._currentPageHasImages = 1
 
 
 def outline_entry(title: str, key: str):

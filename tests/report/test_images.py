@@ -1,0 +1,72 @@
+"""The worksheet's figures go into the PDF pre-encoded (exposure.report.figure.FlateImage): the
+pixels an outside PDF reader decodes are the pixels drawn.
+
+Outside references: pypdf's image decoder (FlateDecode with PNG predictors), and the PDF
+standard's rule on filter parameters (ISO 32000-1:2008, 7.3.8.2: with one filter,
+/DecodeParms is a dictionary and /Filter a name; an array of filters takes an array of
+parameters), which renderers enforce (a reader that ignores a mismatched pair shows the
+predicted differences, not the figure).
+"""
+
+from __future__ import annotations
+
+import io
+
+import numpy as np
+from pypdf import PdfReader
+from pypdf.generic import DictionaryObject, NameObject
+from reportlab.pdfgen.canvas import Canvas
+
+from exposure.report.figure import FlateImage, new_figure, raster
+from exposure.report.layout import draw_flate_image
+
+
+def _pdf_with(*images: FlateImage) -> PdfReader:
+    buffer = io.BytesIO()
+    canvas = Canvas(buffer, pagesize=(600, 400))
+    for k, image in enumerate(images):
+        canvas.saveState()
+        canvas.translate(20 + 150 * k, 20)
+        draw_flate_image(canvas, image, 120, 120 * image.height / image.width)
+        canvas.restoreState()
+    canvas.showPage()
+    canvas.save()
+    return PdfReader(io.BytesIO(buffer.getvalue()))
+
+
+def test_pixels_round_trip_through_an_outside_reader():
+    rng = np.random.default_rng(7)
+    noise = rng.integers(0, 256, size=(37, 53, 3), dtype=np.uint8)  # every row differs: Up wraps mod 256
+    flat = np.full((20, 31, 3), (12, 200, 255), dtype=np.uint8)
+    reader = _pdf_with(FlateImage.from_pixels(noise), FlateImage.from_pixels(flat))
+    decoded = {d.shape: d for d in (np.asarray(image.image.convert("RGB")) for image in reader.pages[0].images)}
+    assert len(decoded) == 2
+    np.testing.assert_array_equal(decoded[noise.shape], noise)
+    np.testing.assert_array_equal(decoded[flat.shape], flat)
+
+
+def test_filter_and_parameters_are_paired_as_the_standard_says():
+    reader = _pdf_with(FlateImage.from_pixels(np.zeros((4, 5, 3), dtype=np.uint8)))
+    resources = reader.pages[0]["/Resources"]["/XObject"]
+    (stream,) = (resources[name].get_object() for name in resources)
+    assert stream["/Subtype"] == "/Image"
+    assert isinstance(stream["/Filter"], NameObject) and stream["/Filter"] == "/FlateDecode"
+    params = stream["/DecodeParms"]
+    assert isinstance(params, DictionaryObject)
+    assert (params["/Predictor"], params["/Colors"], params["/Columns"]) == (12, 3, 5)
+
+
+def test_one_image_drawn_twice_is_stored_once():
+    image = FlateImage.from_pixels(np.full((3, 3, 3), 9, dtype=np.uint8))
+    reader = _pdf_with(image, image)
+    assert len(reader.pages[0]["/Resources"]["/XObject"]) == 1
+
+
+def test_a_figure_is_cropped_to_its_drawing_and_keeps_its_axes():
+    """The crop holds every axes' frame (even one left white) and every inked pixel, with the pad."""
+    fig = new_figure(4.0, 3.0)
+    ax = fig.add_axes((0.3, 0.3, 0.4, 0.4))
+    ax.set_axis_off()  # nothing drawn: the frame alone decides the crop
+    image, width_in, height_in = raster(fig, dpi=100, pad_inches=0.05)
+    assert (image.width, image.height) == (round(0.4 * 400) + 10, round(0.4 * 300) + 10)
+    assert (width_in, height_in) == (image.width / 100, image.height / 100)

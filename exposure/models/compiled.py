@@ -388,7 +388,7 @@ def density_column(p, tables, px, py, z, spatial_peak, out):
     """
     if p[AXES + 2] != 0.0 or p[AXES + 5] != 0.0:  # a tilted forward axis: point by point
         for h in range(z.shape[0]):
-            out[h] = _density(p, tables, px, py, z[h], spatial_peak)
+            out[h] = density_at(p, tables, px, py, z[h], spatial_peak)  # a call, not a second inlined copy
         return
     ox, oy, oz = p[ORIGIN], p[ORIGIN + 1], p[ORIGIN + 2]
     f = p[AXES] * px + p[AXES + 1] * py + p[AXES + 2] * z[0]

@@ -108,11 +108,11 @@ Encoded = tuple[Any, float, float]
 """A figure encoded (PNG or SVG bytes, or an image for the worksheet), and its width and height [in]."""
 
 
-def png(fig, dpi: int = DPI, compress_level: int = 1) -> Encoded:
-    """PNG bytes cropped to the drawing, and its width and height [in]; no timestamp or version.
+def png(fig, dpi: int = DPI, compress_level: int = 6) -> Encoded:
+    """PNG bytes cropped to the drawing, and its width and height [in]; no timestamp or version:
+    the exported figures (:func:`png_at`). The worksheet's take :func:`raster`.
 
-    *compress_level* (zlib, 0-9): 1 for the worksheet's figures, which reportlab decodes and
-    compresses again for the PDF; :func:`png_at` (files written for people) takes 6."""
+    *compress_level* (zlib, 0-9)."""
     buffer = io.BytesIO()
     fig.savefig(
         buffer,
@@ -144,8 +144,6 @@ class FlateImage:
         compress almost as well as at level 6, in half the time)."""
         import zlib
 
-        import numpy as np
-
         rows = np.ascontiguousarray(rgb, dtype=np.uint8).reshape(rgb.shape[0], -1)
         predicted = np.empty((rows.shape[0], rows.shape[1] + 1), dtype=np.uint8)
         predicted[:, 0] = 2  # the PNG filter type of each row: Up
@@ -164,8 +162,6 @@ def raster(fig, dpi: int = DPI, pad_inches: float = 0.03) -> Encoded:
     around: :func:`png`'s tight box without measuring every text again (a text's box reaches a
     few pixels past its ink).
     """
-    import numpy as np
-
     fig.set_dpi(dpi)
     fig.canvas.draw()
     pixels = np.asarray(fig.canvas.buffer_rgba())
@@ -256,7 +252,7 @@ def arrange(fig, ax, bar=None, legend=None) -> None:
 
 def png_at(dpi: int) -> Callable[[Any], Encoded]:
     """A PNG encoder at *dpi* (the exports' 300 dpi, say)."""
-    return lambda fig: png(fig, dpi, compress_level=6)
+    return lambda fig: png(fig, dpi)
 
 
 def svg(fig) -> Encoded:

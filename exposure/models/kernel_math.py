@@ -46,7 +46,7 @@ _TAN_3PI_8 = math.tan(3.0 * math.pi / 8.0)
 
 @njit(cache=True, inline="always")
 def _atan(x):
-    """arctan(x) [rad] within 2e-14: the C library's atan costs several times more per call, and
+    """arctan(x) [rad] within 2e-14: the C library's atan costs half as much again per call, and
     the synthetic model calls it three times a pair. Reduced to |y| <= tan(pi/8) by
     atan(x) = pi/4 + atan((x - 1)/(x + 1)) and atan(x) = pi/2 - atan(1/x) (x > 0; odd)."""
     a = abs(x)

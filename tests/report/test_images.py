@@ -70,3 +70,23 @@ def test_a_figure_is_cropped_to_its_drawing_and_keeps_its_axes():
     image, width_in, height_in = raster(fig, dpi=100, pad_inches=0.05)
     assert (image.width, image.height) == (round(0.4 * 400) + 10, round(0.4 * 300) + 10)
     assert (width_in, height_in) == (image.width / 100, image.height / 100)
+
+
+def test_remembered_text_sizes_are_the_renderers_own():
+    """figure.text_size keeps a label's size across figures: the same size matplotlib's Agg
+    renderer measures, per font family (a label in another font is measured again)."""
+    import matplotlib
+    from matplotlib.font_manager import FontProperties
+
+    from exposure.report.figure import text_size
+
+    for family in (["DejaVu Sans"], ["DejaVu Serif"]):
+        with matplotlib.rc_context({"font.family": family}):
+            renderer = new_figure(2.0, 1.0).canvas.get_renderer()
+            w, h, _ = renderer.get_text_width_height_descent("10,000 %", FontProperties(size=7), ismath=False)
+            assert text_size(renderer, "10,000 %", 7) == (w / renderer.dpi, h / renderer.dpi)
+            assert text_size(new_figure(3.0, 2.0).canvas.get_renderer(), "10,000 %", 7) == (
+                w / renderer.dpi,
+                h / renderer.dpi,
+            )
+    assert text_size(renderer, "", 7) == (0.0, 0.0)

@@ -326,14 +326,43 @@ def crosses(values: np.ndarray, level: float) -> bool:
 
 
 def contour(ax, x, y, values, level: float, style: dict, zorder: float, casing: bool = False) -> bool:
-    """Draw the contour at *level*; False where there is none to draw."""
+    """Draw the contour at *level*; False where there is none to draw.
+
+    The lines are contourpy's, traced as matplotlib's ``contour`` traces them (the same
+    algorithm, corner masking and invalid values masked), drawn as one path collection per
+    style: the same strokes without a ContourSet's colour-mapping machinery, built twice per
+    line with its casing.
+    """
+    import contourpy
+    import matplotlib
+    from matplotlib.collections import PathCollection
+    from matplotlib.path import Path
+
     values = np.asarray(values, dtype=float)
     if values.ndim != 2 or min(values.shape) < 2 or not crosses(values, level):
         return False
-    masked = np.ma.masked_invalid(values)
-    if casing:
-        ax.contour(x, y, masked, levels=[level], zorder=zorder, **CASING)
-    ax.contour(x, y, masked, levels=[level], zorder=zorder + 0.1, **style)
+    generator = contourpy.contour_generator(
+        np.asarray(x, dtype=float),
+        np.asarray(y, dtype=float),
+        np.ma.masked_invalid(values),
+        name=matplotlib.rcParams["contour.algorithm"],
+        corner_mask=matplotlib.rcParams["contour.corner_mask"],
+        line_type=contourpy.LineType.SeparateCode,
+    )
+    points, codes = generator.lines(level)
+    paths = [Path(p, c) for p, c in zip(points, codes, strict=True)]
+    for stroke, z in ((CASING, zorder), (style, zorder + 0.1)) if casing else ((style, zorder + 0.1),):
+        ax.add_collection(
+            PathCollection(
+                paths,
+                facecolors="none",
+                edgecolors=stroke["colors"],
+                linewidths=stroke["linewidths"],
+                linestyles=stroke["linestyles"],
+                zorder=z,
+            ),
+            autolim=False,
+        )
     return True
 
 

@@ -90,3 +90,23 @@ def test_remembered_text_sizes_are_the_renderers_own():
                 h / renderer.dpi,
             )
     assert text_size(renderer, "", 7) == (0.0, 0.0)
+
+
+def test_contour_lines_are_matplotlibs_own():
+    """figure.contour draws, without a ContourSet, the lines matplotlib's ``contour`` traces on
+    the same grid (invalid cells masked, corners masked as matplotlib does)."""
+    from exposure.report.figure import GP_LINE, contour
+
+    x, y = np.linspace(0.0, 8.0, 33), np.linspace(-2.0, 3.0, 21)
+    values = np.exp(-((x[None, :] - 4.0) ** 2) / 4.0 - y[:, None] ** 2 / 2.0) * 3.0
+    values[5:8, 10:14] = np.nan  # a hole: the lines stop at the masked cells
+    ax = new_figure(4.0, 3.0).add_subplot()
+    assert contour(ax, x, y, values, 1.0, GP_LINE, 5.0, casing=True)
+    casing, line = ax.collections
+    reference = ax.contour(x, y, np.ma.masked_invalid(values), levels=[1.0]).get_paths()[0]
+    for drawn in (casing, line):
+        paths = drawn.get_paths()
+        np.testing.assert_allclose(np.concatenate([p.vertices for p in paths]), reference.vertices, rtol=0, atol=1e-12)
+        np.testing.assert_array_equal(np.concatenate([p.codes for p in paths]), reference.codes)
+    assert line.get_zorder() > casing.get_zorder()
+    assert not contour(ax, x, y, values, 10.0, GP_LINE, 5.0)  # nothing reaches 10: nothing drawn

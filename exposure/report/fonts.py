@@ -70,7 +70,12 @@ def _characters(path: str) -> frozenset[int]:
 
 @functools.cache
 def _dejavu_characters() -> frozenset[int]:
-    return _characters(str(_dejavu_folder() / "DejaVuSans.ttf"))
+    """The body font's characters, from the face reportlab has read already (reading the file
+    again costs a twentieth of a second)."""
+    from reportlab.pdfbase import pdfmetrics
+
+    register_fonts()
+    return frozenset(pdfmetrics.getFont(FONT).face.charToGlyph)
 
 
 def covered(char: str) -> bool:

@@ -127,11 +127,17 @@ def surface_labels(assessment, labels: Labels, region=None) -> list[tuple]:
         label = "\n".join(textwrap.wrap(plain(s.name), 30) + [f"({access}{elevation})"])
         width, height = labels.size(label, 6.5)
         candidates = points_inside(polygon)
+        # the label's corners at every candidate, tested in one call; the first free box wins
+        centres = np.asarray(candidates)
+        left, bottom = centres[:, 0] - width / 2, centres[:, 1] - height / 2
+        right, top = left + width, bottom + height
+        fits = contains(
+            polygon, np.column_stack([left, right, right, left]), np.column_stack([bottom, bottom, top, top])
+        ).all(axis=1)
         inside = False
-        for cx, cy in candidates:
-            box = _box_at(cx, cy, width, height, "center", "center")
-            corners_x, corners_y = [box[0], box[2], box[2], box[0]], [box[1], box[1], box[3], box[3]]
-            if contains(polygon, corners_x, corners_y).all() and labels.free(box):
+        for k in np.flatnonzero(fits):
+            box = _box_at(float(centres[k, 0]), float(centres[k, 1]), width, height, "center", "center")
+            if labels.free(box):
                 inside = True
                 break
         anchor = None

@@ -38,7 +38,7 @@ print(result.to_frame("flags")[["severity", "code"]].to_string())
 # ## The plan map, as the worksheet draws it
 
 # %%
-from exposure.report.figure import png_at  # noqa: E402 (a notebook's cell)
+from exposure.report.encode import png_at  # noqa: E402 (a notebook's cell)
 from exposure.report.maps import plan_map  # noqa: E402
 
 image, width_in, height_in, _ = plan_map(result, encode=png_at(120))

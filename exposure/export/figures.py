@@ -29,7 +29,7 @@ def figures(assessment: Assessment, formats: tuple[str, ...]) -> dict[str, bytes
     ----------
     The worksheet's figures (:mod:`exposure.report.maps`, :mod:`exposure.report.section_figure`).
     """
-    from exposure.report.figure import png_at, svg
+    from exposure.report.encode import png_at, svg
     from exposure.report.maps import plan_map
     from exposure.report.section_figure import section_figure
 

@@ -1,10 +1,10 @@
 """What the map and the sections share: the colour scale, the contour and surface styles, the
-scale bar and north arrow, and figures drawn on matplotlib's Agg canvas as PNG bytes.
+scale bar and north arrow, the figure's layout (:func:`arrange`) and legends drawn apart;
+:mod:`exposure.report.encode` turns the figures into bytes.
 
 matplotlib is used through its object API on the Agg canvas (no pyplot, no global
 backend switch), and imported only inside the functions, so that importing
-``exposure.report`` stays cheap. Each function returns PNG bytes and the figure's size in
-inches; the PNG carries no timestamp or version, so equal input gives equal bytes.
+``exposure.report`` stays cheap.
 
 Colours: exposure is shown as % of the general-public limit on ``viridis`` (perceptually
 uniform, readable in greyscale and by most colour-vision deficiencies) on a log scale from
@@ -15,16 +15,12 @@ dark red with a white casing (occupational), so they read on every part of the s
 
 from __future__ import annotations
 
-import io
 import math
-from collections.abc import Callable
-from dataclasses import dataclass
-from typing import Any
+from typing import Any, cast
 
 import numpy as np
 
-DPI = 200
-
+from exposure.report.encode import DPI, Encoded, raster
 
 PERCENT_RANGE = (1.0, 1.0e4)  # usual colour scale of the maps [% of the general-public limit]
 
@@ -104,81 +100,6 @@ def new_figure(width_in: float, height_in: float):
     return fig
 
 
-Encoded = tuple[Any, float, float]
-"""A figure encoded (PNG or SVG bytes, or an image for the worksheet), and its width and height [in]."""
-
-
-def png(fig, dpi: int = DPI, compress_level: int = 6) -> Encoded:
-    """PNG bytes cropped to the drawing, and its width and height [in]; no timestamp or version:
-    the exported figures (:func:`png_at`). The worksheet's take :func:`raster`.
-
-    *compress_level* (zlib, 0-9)."""
-    buffer = io.BytesIO()
-    fig.savefig(
-        buffer,
-        format="png",
-        dpi=dpi,
-        metadata={"Software": None},
-        bbox_inches="tight",
-        pad_inches=0.03,
-        pil_kwargs={"compress_level": compress_level},
-    )
-    data = buffer.getvalue()
-    width, height = int.from_bytes(data[16:20], "big"), int.from_bytes(data[20:24], "big")  # PNG IHDR
-    return data, width / dpi, height / dpi
-
-
-@dataclass(frozen=True)
-class FlateImage:
-    """RGB pixels encoded for a PDF image XObject: each row PNG-predicted from the row above
-    (the "Up" filter) and the whole zlib-compressed, the form PDF readers decode themselves
-    (ISO 32000-1:2008, 7.4.4, Tables 8 and 10: FlateDecode with /Predictor 12)."""
-
-    width: int  # pixels
-    height: int  # pixels
-    data: bytes
-
-    @classmethod
-    def from_pixels(cls, rgb) -> FlateImage:
-        """Encode an (height, width, 3) uint8 array; zlib level 1 (flat colour fields and lines
-        compress almost as well as at level 6, in half the time)."""
-        import zlib
-
-        rows = np.ascontiguousarray(rgb, dtype=np.uint8).reshape(rgb.shape[0], -1)
-        predicted = np.empty((rows.shape[0], rows.shape[1] + 1), dtype=np.uint8)
-        predicted[:, 0] = 2  # the PNG filter type of each row: Up
-        predicted[0, 1:] = rows[0]
-        np.subtract(rows[1:], rows[:-1], out=predicted[1:, 1:])  # modulo 256, as PNG defines it
-        return cls(int(rgb.shape[1]), int(rgb.shape[0]), zlib.compress(predicted.tobytes(), 1))
-
-
-def raster(fig, dpi: int = DPI, pad_inches: float = 0.03) -> Encoded:
-    """The figure drawn once, as pixels encoded for the PDF (:class:`FlateImage`), cropped to the
-    drawing, and its width and height [in].
-
-    The worksheet's figures: encoded once, with no PNG written and decoded between and nothing
-    for reportlab to compress again, and drawn once (``savefig`` with a tight box draws it
-    twice). The crop is every pixel not left white and every axes' frame, with *pad_inches*
-    around: :func:`png`'s tight box without measuring every text again (a text's box reaches a
-    few pixels past its ink).
-    """
-    fig.set_dpi(dpi)
-    fig.canvas.draw()
-    pixels = np.asarray(fig.canvas.buffer_rgba())
-    rows, cols = pixels.shape[:2]
-    ink = pixels.view(np.uint32)[..., 0] != np.uint32(0xFFFFFFFF)
-    across, down = np.flatnonzero(ink.any(axis=0)), np.flatnonzero(ink.any(axis=1))
-    x0, x1 = (int(across[0]), int(across[-1]) + 1) if across.size else (cols, 0)
-    y0, y1 = (int(down[0]), int(down[-1]) + 1) if down.size else (rows, 0)
-    for ax in fig.axes:  # display coordinates: pixels from the bottom left
-        box = ax.get_window_extent()
-        x0, x1 = min(x0, int(np.floor(box.x0))), max(x1, int(np.ceil(box.x1)))
-        y0, y1 = min(y0, int(np.floor(rows - box.y1))), max(y1, int(np.ceil(rows - box.y0)))
-    pad = int(round(pad_inches * dpi))
-    x0, x1, y0, y1 = max(0, x0 - pad), min(cols, x1 + pad), max(0, y0 - pad), min(rows, y1 + pad)
-    return FlateImage.from_pixels(pixels[y0:y1, x0:x1, :3]), (x1 - x0) / dpi, (y1 - y0) / dpi
-
-
 _TEXT_SIZES: dict[tuple, tuple[float, float]] = {}
 
 
@@ -203,7 +124,15 @@ def text_size(renderer, text: str, points: float) -> tuple[float, float]:
     return found
 
 
-def arrange(fig, ax, bar=None, legend=None) -> None:
+def legend_apart(handles, **style) -> Encoded:
+    """A legend of *handles* drawn on its own (``fig.legend`` *style*) and cropped: the worksheet
+    sets it under a figure drawn without one, and draws it once for all the figures it serves."""
+    fig = new_figure(7.5, 1.5)
+    fig.legend(handles=handles, loc="center", **style)
+    return raster(fig)
+
+
+def arrange(fig, ax, bar=None, legend=None, room_below_in: float = 0.0) -> None:
     r"""Place *ax* (its aspect set), its vertical colour *bar* and the figure's *legend* once, from
     the sizes of their texts: what matplotlib's constrained layout gives these figures, for a
     fraction of the time (it measures every text of the figure twice before drawing it).
@@ -211,7 +140,9 @@ def arrange(fig, ax, bar=None, legend=None) -> None:
     The axes take the figure's room left after the margins their tick labels, axis labels,
     colour bar and legend need, shrunk to their aspect and kept at the lower left; the bar
     stands beside them, as tall, and the legend is centred under them at the figure's bottom.
-    The room left over at the top and right is cropped with the rest (:func:`raster`, :func:`png`).
+    The room left over at the top and right is cropped with the rest (``encode.raster``, ``encode.png``).
+    Without a *legend*, *room_below_in* [in] is kept for one set apart (the worksheet's), so that
+    the axes come out as large as with it drawn.
     """
     renderer = fig.canvas.get_renderer()
     dpi = fig.dpi
@@ -233,7 +164,8 @@ def arrange(fig, ax, bar=None, legend=None) -> None:
 
     def side(axis, across: bool) -> float:
         """The room an axis's ticks and label take beside the axes [in]."""
-        tick = (axis.get_major_ticks()[0].get_tick_padding() if axis.get_major_ticks() else 7.0) * pt
+        major = axis.get_major_ticks()
+        tick = (major[0].get_tick_padding() + major[0].get_pad() if major else 7.0) * pt  # tick, then the gap
         points = label_points(axis)
         labels = [size(t, points) for t in ticks(axis)]
         extent = max((w if across else h for w, h in labels), default=0.0)
@@ -249,8 +181,9 @@ def arrange(fig, ax, bar=None, legend=None) -> None:
         bar_w, bar_gap = 0.12, 0.12
         right = bar_gap + bar_w + side(bar.ax.yaxis, across=True)
     if legend is not None:
-        legend_h = legend.get_window_extent(renderer).height / dpi
-        bottom += legend_h + 0.1
+        room_below_in = legend.get_window_extent(renderer).height / dpi
+    if room_below_in:
+        bottom += room_below_in + 0.1
     room_w, room_h = max(width_in - left - right, 0.1), max(height_in - bottom - top, 0.1)
     x0, x1 = ax.get_xlim()
     y0, y1 = ax.get_ylim()
@@ -267,25 +200,6 @@ def arrange(fig, ax, bar=None, legend=None) -> None:
         )
     if legend is not None:
         legend.set_bbox_to_anchor(((left + 0.5 * box_w) / width_in, 0.0), transform=fig.transFigure)
-
-
-def png_at(dpi: int) -> Callable[[Any], Encoded]:
-    """A PNG encoder at *dpi* (the exports' 300 dpi, say)."""
-    return lambda fig: png(fig, dpi)
-
-
-def svg(fig) -> Encoded:
-    """SVG bytes cropped to the drawing (text as paths, so it reads the same without our fonts),
-    with no date and element ids fixed (``svg.hashsalt``): equal drawings give equal bytes."""
-    import matplotlib
-
-    buffer = io.BytesIO()
-    with matplotlib.rc_context({"svg.hashsalt": "exposure", "svg.fonttype": "path"}):
-        fig.savefig(
-            buffer, format="svg", metadata={"Date": None, "Creator": None}, bbox_inches="tight", pad_inches=0.03
-        )
-    width, height = fig.get_size_inches()
-    return buffer.getvalue(), float(width), float(height)
 
 
 def colour_range(assessment) -> tuple[float, float]:
@@ -349,7 +263,7 @@ def contour(ax, x, y, values, level: float, style: dict, zorder: float, casing: 
         corner_mask=matplotlib.rcParams["contour.corner_mask"],
         line_type=contourpy.LineType.SeparateCode,
     )
-    points, codes = generator.lines(level)
+    points, codes = cast(tuple[list, list], generator.lines(level))  # SeparateCode: (points, codes) per line
     paths = [Path(p, c) for p, c in zip(points, codes, strict=True)]
     for stroke, z in ((CASING, zorder), (style, zorder + 0.1)) if casing else ((style, zorder + 0.1),):
         ax.add_collection(

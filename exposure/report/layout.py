@@ -27,7 +27,7 @@ VERDICT_TINTS = {"compliant": "#eef5ef", "verify-by-measurement": "#fbf4e4", "mi
 
 
 def picture(image, width: float, height: float):
-    """A flowable of a figure drawn by :func:`exposure.report.figure.raster`, centred, *width* ×
+    """A flowable of a figure drawn by :func:`exposure.report.encode.raster`, centred, *width* ×
     *height* [points]: its pixels go into the PDF as encoded, once however often it is drawn."""
     from reportlab.platypus import Flowable
 
@@ -47,7 +47,7 @@ def picture(image, width: float, height: float):
 
 
 def draw_flate_image(canvas, image, width: float, height: float) -> None:
-    """Draw a :class:`~exposure.report.figure.FlateImage` at the origin, *width* × *height*
+    """Draw a :class:`~exposure.report.encode.FlateImage` at the origin, *width* × *height*
     [points], as one image XObject of the document (what ``Canvas.drawImage`` does for an image
     it compresses itself; reportlab has no public call for pixels already encoded)."""
     import hashlib

@@ -6,6 +6,7 @@ The shared scale and styles are :mod:`exposure.report.figure`.
 
 from __future__ import annotations
 
+import functools
 from collections.abc import Callable
 from typing import TYPE_CHECKING, Any
 
@@ -14,6 +15,7 @@ if TYPE_CHECKING:
 
 import numpy as np
 
+from exposure.report.encode import PAD_IN, Encoded, raster
 from exposure.report.figure import (
     ACCESS_LABEL,
     ACCESS_STYLE,
@@ -22,23 +24,24 @@ from exposure.report.figure import (
     ELEMENT_ZONE_COLOUR,
     ELEMENT_ZONE_HATCH,
     OCC_COLOUR,
-    Encoded,
     arrange,
     colour_range,
     colourbar,
     contour,
     edges,
     hatch_cells,
+    legend_apart,
     new_figure,
     nice_length,
     norm,
     north_arrow,
     percent,
-    raster,
     scale_bar,
     surface_patch,
 )
 from exposure.report.labels import Labels, emitter_labels, surface_labels, work_labels
+
+MAP_HATCH_WIDTH = 0.45  # [pt]: the hatches of the surfaces and the element zone
 
 
 def _base_extent(assessment, region=None) -> tuple[tuple[float, float], tuple[float, float]]:
@@ -87,23 +90,23 @@ def plan_map(
     region : ((x0, x1), (y0, y1)), optional
         Draw only this part of the site [m] (a detail map); default the whole site.
     legend : bool
-        Draw the symbol legend below the map.
+        Draw the symbol legend below the map (the worksheet sets :func:`legend_image` instead).
     encode : callable
-        Figure to bytes: :func:`~exposure.report.figure.raster` (the worksheet's image), a PNG at
-        another resolution (:func:`~exposure.report.figure.png_at`) or
-        :func:`~exposure.report.figure.svg`.
+        Figure to bytes: :func:`~exposure.report.encode.raster` (the worksheet's image), a PNG at
+        another resolution (:func:`~exposure.report.encode.png_at`) or
+        :func:`~exposure.report.encode.svg`.
 
     Returns
     -------
     tuple of (bytes, float, float, dict)
-        PNG at :data:`DPI`, its width and height [in], and per tier the names of the
+        PNG at :data:`~exposure.report.encode.DPI`, its width and height [in], and per tier the names of the
         surfaces on which a 100 % line is drawn.
     """
     import matplotlib
 
     from exposure.report.fonts import matplotlib_rc
 
-    with matplotlib.rc_context({"hatch.linewidth": 0.45, **matplotlib_rc()}):
+    with matplotlib.rc_context({"hatch.linewidth": MAP_HATCH_WIDTH, **matplotlib_rc()}):
         return _plan_map(assessment, width_in, max_height_in, region, legend, encode)
 
 
@@ -127,9 +130,6 @@ def detail_region(assessment, *, max_fraction: float = 0.4):
 
 
 def _plan_map(assessment, width_in: float, max_height_in: float, region, legend: bool, encode):
-    from matplotlib.lines import Line2D
-    from matplotlib.patches import Patch
-
     (x0, x1), (y0, y1) = _base_extent(assessment, region)
     span = max(x1 - x0, y1 - y0, 5.0)
     base = 0.065 * span  # boresight arrow length [m]
@@ -309,6 +309,29 @@ def _plan_map(assessment, width_in: float, max_height_in: float, region, legend:
     bar = None
     if mesh is not None:
         bar = colourbar(fig, mesh, ax)
+    legend_box, room = None, 0.0
+    if legend:
+        legend_box = fig.legend(handles=_legend_handles(legend_entries(assessment)), loc="lower center", **LEGEND_STYLE)
+    else:  # laid out as with its legend, which the worksheet sets beneath it
+        room = legend_image(legend_entries(assessment))[2] - 2 * PAD_IN
+    arrange(fig, ax, bar, legend_box, room_below_in=room)
+    return *encode(fig), drawn
+
+
+LEGEND_STYLE = {"ncol": 3, "fontsize": 6.5, "frameon": False, "handlelength": 2.4}
+
+
+def legend_entries(assessment) -> tuple[str, ...]:
+    """The map legend's entries for this site: the lines and symbols every map shows, the element
+    zone where there is one, and the access classes of its surfaces."""
+    zone = ("element_zone",) if any(s.element_zone_area_m2 > 0 for s in assessment.surfaces) else ()
+    return ("lines", "symbols", *zone, *(a for a in ACCESS_STYLE if any(s.access == a for s in assessment.surfaces)))
+
+
+def _legend_handles(entries: tuple[str, ...]) -> list[Artist]:
+    from matplotlib.lines import Line2D
+    from matplotlib.patches import Patch
+
     handles: list[Artist] = [
         Line2D([], [], color="black", linewidth=1.3, label="100 % of the general-public limit"),
         Line2D([], [], color=OCC_COLOUR, linewidth=1.6, label="100 % of the occupational limit"),
@@ -352,7 +375,7 @@ def _plan_map(assessment, width_in: float, max_height_in: float, region, legend:
             label="work position W1, W2, ...",
         ),
     ]
-    if any(s.element_zone_area_m2 > 0 for s in assessment.surfaces):
+    if "element_zone" in entries:
         handles.append(
             Patch(
                 facecolor="none",
@@ -362,8 +385,8 @@ def _plan_map(assessment, width_in: float, max_height_in: float, region, legend:
                 label="element zone: measure E and H, no prediction",
             )
         )
-    for access in ("public", "occupational", "none"):
-        if any(s.access == access for s in assessment.surfaces):
+    for access in ACCESS_STYLE:
+        if access in entries:
             style = ACCESS_STYLE[access]
             handles.append(
                 Patch(
@@ -375,10 +398,17 @@ def _plan_map(assessment, width_in: float, max_height_in: float, region, legend:
                     label=ACCESS_LABEL[access],
                 )
             )
-    legend_box = None
-    if legend:
-        legend_box = fig.legend(
-            handles=handles, loc="lower center", ncol=3, fontsize=6.5, frameon=False, handlelength=2.4
-        )
-    arrange(fig, ax, bar, legend_box)
-    return *encode(fig), drawn
+    return handles
+
+
+@functools.lru_cache(maxsize=32)
+def legend_image(entries: tuple[str, ...]) -> Encoded:
+    """The map legend alone, as :func:`plan_map` draws it under the map (*entries* from
+    :func:`legend_entries`): the worksheet sets it under each map as a picture of its own, drawn
+    once for all the maps of a run that show the same entries (it costs a quarter of a map)."""
+    import matplotlib
+
+    from exposure.report.fonts import matplotlib_rc
+
+    with matplotlib.rc_context({"hatch.linewidth": MAP_HATCH_WIDTH, **matplotlib_rc()}):
+        return legend_apart(_legend_handles(entries), **LEGEND_STYLE)

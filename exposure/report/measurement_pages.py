@@ -9,7 +9,8 @@ from typing import Any
 
 from exposure.measurement.compare import Comparison
 from exposure.report import fonts, text
-from exposure.report.figure import new_figure, raster
+from exposure.report.encode import raster
+from exposure.report.figure import new_figure
 from exposure.report.layout import Builder, esc, picture
 
 __all__ = ["comparison_appendix", "scatter_figure"]

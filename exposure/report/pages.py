@@ -157,8 +157,9 @@ def map_page(b: Builder, a) -> None:
 
     b.heading("Plan-view exposure map", new_page=True)
     region = maps.detail_region(a)
-    png, w, h, drawn = maps.plan_map(a, width_in=b.width / inch, max_height_in=7.7)
-    b.add(picture(png, w * inch, h * inch))
+    png, w, h, drawn = maps.plan_map(a, width_in=b.width / inch, max_height_in=7.7, legend=False)
+    map_key = maps.legend_image(maps.legend_entries(a))  # drawn once for every map alike
+    b.add(KeepTogether([picture(png, w * inch, h * inch), _legend_picture(map_key)]))
     settings = a.settings
     rule = text.EVALUATION_NAMES.get(settings.get("evaluation"), settings.get("evaluation"))
     height = settings.get("body_height_m")
@@ -195,7 +196,7 @@ def map_page(b: Builder, a) -> None:
         )
     b.add(b.p(" ".join(lines), "caption"))
     if region is not None:
-        png, w, h, _ = maps.plan_map(a, width_in=b.width / inch, max_height_in=7.4, region=region)
+        png, w, h, _ = maps.plan_map(a, width_in=b.width / inch, max_height_in=7.4, region=region, legend=False)
         (x0, x1), (y0, y1) = region
         b.add(
             PageBreak(),
@@ -203,6 +204,7 @@ def map_page(b: Builder, a) -> None:
                 [
                     b.p("Detail around the antennas", "h2"),
                     picture(png, w * inch, h * inch),
+                    _legend_picture(map_key),
                     b.p(
                         f"The map above, enlarged to x {x0:.0f}…{x1:.0f} m, y {y0:.0f}…{y1:.0f} m (grid "
                         f"{text.number(settings.get('grid_m'))} m).",
@@ -211,6 +213,14 @@ def map_page(b: Builder, a) -> None:
                 ]
             ),
         )
+
+
+def _legend_picture(encoded):
+    """A legend drawn apart (``maps.legend_image``, ``section_figure.legend_image``) as a picture."""
+    from reportlab.lib.units import inch
+
+    image, width_in, height_in = encoded
+    return picture(image, width_in * inch, height_in * inch)
 
 
 def sections_page(b: Builder, a) -> None:
@@ -227,10 +237,11 @@ def sections_page(b: Builder, a) -> None:
             "small",
         )
     )
+    key = section_figure.legend_image(body)  # drawn once for all the sections
     for sec in a.sections:
         e = a.emitter(sec.emitter_id)
         png, w, h, facts = section_figure.section_figure(
-            sec.s_m, sec.z_m, sec.ratio, emitter=e, assessment=a, body_height_m=body, max_height_in=4.0
+            sec.s_m, sec.z_m, sec.ratio, emitter=e, assessment=a, body_height_m=body, max_height_in=4.0, legend=False
         )
         worst = facts["worst"]
         caption = (
@@ -253,7 +264,7 @@ def sections_page(b: Builder, a) -> None:
             caption += " The plane crosses no surface people can reach."
         if facts["exaggeration"] != 1:
             caption += f" <b>Vertical scale exaggerated × {facts['exaggeration']:g}.</b>"
-        b.add(KeepTogether([picture(png, w * inch, h * inch), b.p(caption, "caption")]))
+        b.add(KeepTogether([picture(png, w * inch, h * inch), _legend_picture(key), b.p(caption, "caption")]))
     if not a.sections:
         b.add(b.p("No sections were computed for this assessment (it was run without sections).", "small"))
 

@@ -4,27 +4,28 @@ with the surfaces it crosses, a person at the worst standing place and the bound
 
 from __future__ import annotations
 
+import functools
 import math
 from collections.abc import Callable
 from typing import Any
 
 import numpy as np
 
+from exposure.report.encode import PAD_IN, Encoded, raster
 from exposure.report.figure import (
     CMAP,
     GP_LINE,
     HEAD_LINE,
     OCC_COLOUR,
     OCC_LINE,
-    Encoded,
     arrange,
     colour_range,
     colourbar,
     contour,
+    legend_apart,
     new_figure,
     norm,
     percent,
-    raster,
 )
 
 
@@ -103,6 +104,7 @@ def section_figure(
     body_height_m: float,
     width_in: float = 7.2,
     max_height_in: float = 4.1,
+    legend: bool = True,
     encode: Callable[[Any], Encoded] = raster,
 ) -> tuple[bytes, float, float, dict]:
     """An elevation section along one emitter's boresight with the 100 % contours.
@@ -118,6 +120,8 @@ def section_figure(
     assessment : exposure.assessment.results.Assessment
     body_height_m : float
         Height of the standing figure and of the evaluation band above each surface [m].
+    legend : bool
+        Draw the legend under the section (the worksheet sets :func:`legend_image` instead).
     encode : callable
         Figure to bytes (:func:`exposure.report.maps.plan_map`'s *encode*).
 
@@ -141,13 +145,12 @@ def section_figure(
             body_height_m=body_height_m,
             width_in=width_in,
             max_height_in=max_height_in,
+            legend=legend,
             encode=encode,
         )
 
 
-def _section_figure(s_m, z_m, ratio, *, emitter, assessment, body_height_m, width_in, max_height_in, encode):
-    from matplotlib.lines import Line2D
-
+def _section_figure(s_m, z_m, ratio, *, emitter, assessment, body_height_m, width_in, max_height_in, legend, encode):
     s_m, z_m = np.asarray(s_m, dtype=float), np.asarray(z_m, dtype=float)
     s_span, z_span = float(s_m.max() - s_m.min()), float(z_m.max() - z_m.min())
     axes_w = width_in - 1.55
@@ -240,7 +243,22 @@ def _section_figure(s_m, z_m, ratio, *, emitter, assessment, body_height_m, widt
     ax.set_ylabel("height, site frame [m]", fontsize=7)
     ax.tick_params(labelsize=6.5)
     bar = colourbar(fig, mesh, ax, label="% of the general-public limit")
-    handles = [
+    key, room = None, 0.0
+    if legend:
+        key = fig.legend(handles=_legend_handles(body_height_m), loc="lower center", **LEGEND_STYLE)
+    else:  # laid out as with its legend, which the worksheet sets beneath it
+        room = legend_image(body_height_m)[2] - 2 * PAD_IN
+    arrange(fig, ax, bar, key, room_below_in=room)
+    return *encode(fig), {"exaggeration": exaggeration, "worst": worst, "drawn": drawn}
+
+
+LEGEND_STYLE = {"ncol": 4, "fontsize": 6.5, "frameon": False}
+
+
+def _legend_handles(body_height_m: float) -> list:
+    from matplotlib.lines import Line2D
+
+    return [
         Line2D([], [], color="black", linewidth=1.3, label="100 % general public"),
         Line2D([], [], color=OCC_COLOUR, linewidth=1.6, label="100 % occupational"),
         Line2D([], [], color="black", linewidth=1.4, label="walking surface"),
@@ -253,6 +271,15 @@ def _section_figure(s_m, z_m, ratio, *, emitter, assessment, body_height_m, widt
             label=f"{body_height_m:g} m above the surface",
         ),
     ]
-    key = fig.legend(handles=handles, loc="lower center", ncol=4, fontsize=6.5, frameon=False)
-    arrange(fig, ax, bar, key)
-    return *encode(fig), {"exaggeration": exaggeration, "worst": worst, "drawn": drawn}
+
+
+@functools.lru_cache(maxsize=8)
+def legend_image(body_height_m: float) -> Encoded:
+    """The sections' legend alone, as :func:`section_figure` draws it under a section: the
+    worksheet sets it under each section as a picture of its own, drawn once for all of them."""
+    import matplotlib
+
+    from exposure.report.fonts import matplotlib_rc
+
+    with matplotlib.rc_context(matplotlib_rc()):
+        return legend_apart(_legend_handles(body_height_m), **LEGEND_STYLE)

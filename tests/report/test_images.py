@@ -1,4 +1,4 @@
-"""The worksheet's figures go into the PDF pre-encoded (exposure.report.figure.FlateImage): the
+"""The worksheet's figures go into the PDF pre-encoded (exposure.report.encode.FlateImage): the
 pixels an outside PDF reader decodes are the pixels drawn.
 
 Outside references: pypdf's image decoder (FlateDecode with PNG predictors), and the PDF
@@ -17,7 +17,8 @@ from pypdf import PdfReader
 from pypdf.generic import DictionaryObject, NameObject
 from reportlab.pdfgen.canvas import Canvas
 
-from exposure.report.figure import FlateImage, new_figure, raster
+from exposure.report.encode import FlateImage, raster
+from exposure.report.figure import new_figure
 from exposure.report.layout import draw_flate_image
 
 
@@ -110,3 +111,39 @@ def test_contour_lines_are_matplotlibs_own():
         np.testing.assert_array_equal(np.concatenate([p.codes for p in paths]), reference.codes)
     assert line.get_zorder() > casing.get_zorder()
     assert not contour(ax, x, y, values, 10.0, GP_LINE, 5.0)  # nothing reaches 10: nothing drawn
+
+
+def _axes_box(with_legend: bool, room_below_in: float = 0.0):
+    from matplotlib.lines import Line2D
+
+    from exposure.report.figure import arrange
+
+    fig = new_figure(6.0, 5.0)
+    ax = fig.add_subplot()
+    ax.set_xlim(0.0, 40.0)
+    ax.set_ylim(0.0, 30.0)
+    ax.set_aspect(1.0)
+    ax.set_xlabel("x, east [m]")
+    handles = [Line2D([], [], color="black", label=f"entry {k}") for k in range(5)]
+    legend = fig.legend(handles=handles, loc="lower center", ncol=3, fontsize=6.5) if with_legend else None
+    arrange(fig, ax, None, legend, room_below_in=room_below_in)
+    height = legend.get_window_extent(fig.canvas.get_renderer()).height / fig.dpi if legend else None
+    return ax.get_position().bounds, height
+
+
+def test_a_figure_laid_out_for_a_legend_set_apart_keeps_its_axes():
+    """The worksheet draws each legend once, apart (figure.legend_apart), under figures drawn
+    without it: kept room for it, the axes come out where they are with the legend drawn."""
+    with_legend, height = _axes_box(True)
+    assert _axes_box(False, room_below_in=height)[0] == with_legend
+    assert _axes_box(False)[0] != with_legend  # without the room the axes would grow
+
+
+def test_legends_set_apart_are_drawn_once():
+    from exposure.report import maps, section_figure
+
+    entries = ("lines", "symbols", "public")
+    assert maps.legend_image(entries) is maps.legend_image(entries)
+    image, width_in, height_in = section_figure.legend_image(2.0)
+    assert section_figure.legend_image(2.0)[0] is image
+    assert 0.1 < height_in < 0.5 < width_in  # one row of four entries

@@ -18,6 +18,10 @@ DPI = 200
 """The worksheet's resolution [dots per inch]."""
 
 
+PAD_IN = 0.03
+"""White kept around a figure's drawing when it is cropped [in]."""
+
+
 Encoded = tuple[Any, float, float]
 """A figure encoded (PNG or SVG bytes, or an image for the worksheet), and its width and height [in]."""
 
@@ -34,7 +38,7 @@ def png(fig, dpi: int = DPI, compress_level: int = 6) -> Encoded:
         dpi=dpi,
         metadata={"Software": None},
         bbox_inches="tight",
-        pad_inches=0.03,
+        pad_inches=PAD_IN,
         pil_kwargs={"compress_level": compress_level},
     )
     data = buffer.getvalue()
@@ -64,9 +68,6 @@ class FlateImage:
         predicted[0, 1:] = rows[0]
         np.subtract(rows[1:], rows[:-1], out=predicted[1:, 1:])  # modulo 256, as PNG defines it
         return cls(int(rgb.shape[1]), int(rgb.shape[0]), zlib.compress(predicted.tobytes(), 1))
-
-
-PAD_IN = 0.03  # white kept around a figure's drawing when it is cropped [in]
 
 
 def raster(fig, dpi: int = DPI, pad_inches: float = PAD_IN) -> Encoded:
@@ -109,7 +110,7 @@ def svg(fig) -> Encoded:
     buffer = io.BytesIO()
     with matplotlib.rc_context({"svg.hashsalt": "exposure", "svg.fonttype": "path"}):
         fig.savefig(
-            buffer, format="svg", metadata={"Date": None, "Creator": None}, bbox_inches="tight", pad_inches=0.03
+            buffer, format="svg", metadata={"Date": None, "Creator": None}, bbox_inches="tight", pad_inches=PAD_IN
         )
     width, height = fig.get_size_inches()
     return buffer.getvalue(), float(width), float(height)

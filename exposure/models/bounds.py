@@ -213,7 +213,7 @@ def box_bounds(params, boxes, out):
     Parameters
     ----------
     params : ndarray, shape (emitters, compiled.PARAMS)
-        As :func:`exposure.models.compiled.densities` takes them.
+        As :func:`exposure.models.lanes.densities` takes them.
     boxes : ndarray, shape (n, 6)
         Site-frame boxes ``x0, x1, y0, y1, z0, z1`` [m].
     out : ndarray, shape (emitters, n)

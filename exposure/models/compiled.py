@@ -23,7 +23,7 @@ from __future__ import annotations
 
 import math
 
-from numba import njit, prange
+from numba import njit
 
 from exposure.models.kernel_math import _atan, _exp32, _fade, _primitive, _quadratic
 
@@ -401,63 +401,3 @@ def density_column(p, tables, px, py, z, spatial_peak, out):
         u = p[AXES + 6] * px + p[AXES + 7] * py + p[AXES + 8] * z[h]
         u -= p[AXES + 6] * ox + p[AXES + 7] * oy + p[AXES + 8] * oz
         out[h] = _local_density(p, tables, f, r, u, a_h, e_h, spatial_peak)
-
-
-@njit(cache=True, parallel=True)
-def densities(params, tables, x, y, z, spatial_peak, out):
-    """Every emitter's power density at every point: ``out[e, i]`` [W/m²].
-
-    Parameters
-    ----------
-    params : ndarray, shape (emitters, PARAMS)
-    tables : ndarray
-        The emitters' tabulated patterns, one flat array.
-    x, y, z : ndarray, shape (n,)
-        Site-frame points [m].
-    spatial_peak : bool
-        The ``peak`` evaluation (the synthetic model's coherent margin).
-    out : ndarray, shape (emitters, n)
-
-    Returns
-    -------
-    None
-        The densities are written into *out*.
-
-    References
-    ----------
-    As :func:`exposure.models.power_density` (docs/references.md §§ 3, 7–9).
-    """
-    n_e = params.shape[0]
-    for i in prange(x.shape[0]):
-        px, py, pz = x[i], y[i], z[i]
-        for e in range(n_e):
-            out[e, i] = density_at(params[e], tables, px, py, pz, spatial_peak)
-
-
-@njit(cache=True)
-def emitter_densities(p, tables, x, y, z, spatial_peak, out):
-    """One emitter's power density at each point, one thread: ``out[i]`` [W/m²].
-
-    Parameters
-    ----------
-    p : ndarray, shape (PARAMS,)
-        The emitter's parameter row.
-    tables : ndarray
-        The emitters' tabulated patterns, one flat array.
-    x, y, z : ndarray, shape (n,)
-        Site-frame points [m].
-    spatial_peak : bool
-        The ``peak`` evaluation.
-    out : ndarray, shape (n,)
-
-    Returns
-    -------
-    None
-        The densities are written into *out*.
-
-    References
-    ----------
-    As :func:`exposure.models.power_density` (docs/references.md §§ 3, 7–9).
-    """
-    for i in range(x.shape[0]):
-        out[i] = density_at(p, tables, x[i], y[i], z[i], spatial_peak)

@@ -169,7 +169,7 @@ class FusedKernel:
         ----------
         As :func:`exposure.models.power_density`.
         """
-        from exposure.models.compiled import densities
+        from exposure.models.lanes import densities
 
         pts = np.asarray(points, dtype=float)
         shape = pts.shape[:-1]
@@ -201,7 +201,7 @@ class FusedKernel:
         ----------
         As :func:`exposure.models.power_density`.
         """
-        from exposure.models.compiled import emitter_densities
+        from exposure.models.lanes import emitter_densities
 
         row, tables, peak = self.params[index], self.tables, evaluation == "peak"
 

@@ -3,9 +3,9 @@
 numpy reference (named in its docstring).
 
 Scalar functions: the C library's where it is fast enough, a polynomial fit for arctan (the
-C library's costs half as much again). Branch-free polynomial twins that LLVM vectorises were
-tried and measured slower on the development machine: its vector divisions cost as much per
-lane as scalar ones, and the synthetic model divides a dozen times a pair.
+C library's costs half as much again). Panels and omnis run these formulas in SIMD lanes
+instead (:mod:`exposure.models.lanes`, with its own exponential and logarithm); this module
+serves the scalar path of the other families.
 
 References
 ----------

@@ -25,7 +25,7 @@ import math
 
 from numba import njit
 
-from exposure.models.kernel_math import _atan, _exp32, _fade, _primitive, _quadratic
+from exposure.models.kernel_math import _atan, _exp, _exp32, _exp32_c, _fade, _primitive, _quadratic
 
 # ---- columns of an emitter's parameter row -------------------------------------------------
 ORIGIN = 0  # 3 values: centre of radiation [m]
@@ -142,15 +142,15 @@ def _gain(p, tables, part, f, r, up, horizontal):
     if code == PATTERN_SECTOR:
         t = _atan(up / (horizontal + _TINY_M)) + p[S_TILT]
         t = _quadratic(t, p[S_V_HALF], p[S_KV], p[S_SLA], math.inf) + part
-        return _exp32(-min(t, p[S_CAP]))
+        return _exp32_c(-min(t, p[S_CAP]))
     if code == PATTERN_OMNI:
         t = _atan(up / (horizontal + _TINY_M)) + p[S_TILT]
-        return _exp32(-min(p[S_KV] * t * t, p[S_SLA]))
+        return _exp32_c(-min(p[S_KV] * t * t, p[S_SLA]))
     if code == PATTERN_DISH:
         return _f699(math.atan2(math.hypot(r, up), f) * _DEG, p)
     theta = -math.atan2(up, horizontal) * _DEG
     a = _interp_uniform(theta, tables, int(p[T_V_OFF]), int(p[T_V_N]), p[T_V_X0], p[T_V_STEP])
-    return _exp32(-max(a, part) * NEPER_PER_DB)
+    return _exp32_c(-max(a, part) * NEPER_PER_DB)
 
 
 @njit(cache=True, inline="always")
@@ -215,7 +215,7 @@ def _margin(log_rho):
         m = _N2 + (_N3 - _N2) * (log_rho - _K2) / (_K3 - _K2)
     else:
         m = _N3
-    return math.exp(m)
+    return _exp(m)
 
 
 @njit(cache=True, inline="always")

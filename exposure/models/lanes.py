@@ -14,176 +14,29 @@ selects. So here
   other side of a select, never used) instead of a check and a raise;
 * both sides of a branch are computed and one is selected (the cylindrical sum is computed for
   points where only the spherical model is used, and the other way round);
-* exp, log and arctan are this module's polynomials (numba's C library calls are not vectorised
-  without Intel's SVML, which this numba build lacks): the arctan is the scalar kernel's
-  own (:func:`exposure.models.kernel_math._atan`, the same operations), the exponential
-  :math:`(\sum_{k\le 10} t^k/k!)^{512}` with :math:`t = x/512` (relative error under
-  :math:`10^{-12}` for :math:`|x| \le 104`), the logarithm the series of
-  :math:`2\,\mathrm{artanh}((q-1)/(q+1))` after scaling :math:`q` into :math:`[\sqrt{1/2}, \sqrt 2)`.
+* exp, log and arctan are polynomials (:mod:`exposure.models.kernel_math`, which the scalar
+  path shares): numba vectorises no C library call without Intel's SVML, which this build
+  lacks.
 
 ``tests/models/test_compiled.py`` holds the kernel, this path included, to the numpy reference
 within 10⁻⁶ relative; ``tests/models/test_lanes.py`` holds this path to the scalar one.
 
 References
 ----------
-As :mod:`exposure.models.compiled` (docs/references.md §§ 3, 7–9); the series: Abramowitz &
-Stegun (1964), eqs. 4.2.1 (exp) and 4.1.27 (log).
+As :mod:`exposure.models.compiled` (docs/references.md §§ 3, 7–9).
 """
 
 from __future__ import annotations
 
 import math
 
-import numpy as np
 from numba import njit, prange
 
 from exposure.models import compiled as c
-from exposure.models.kernel_math import (
-    _A0,
-    _A1,
-    _A2,
-    _A3,
-    _A4,
-    _A5,
-    _A6,
-    _A7,
-    _A8,
-    _ERF_A0,
-    _ERF_A1,
-    _ERF_A2,
-    _ERF_A3,
-    _ERF_A4,
-    _ERF_P,
-    _FADE,
-    _HALF_SQRT_PI,
-    _TAN_3PI_8,
-    _TAN_PI_8,
-)
+from exposure.models.compiled import _margin
+from exposure.models.kernel_math import _LN2, _abs_atan2, _atan, _exp32, _fade, _log, _primitive, _quadratic
 
-_E2, _E3, _E4, _E5, _E6, _E7, _E8, _E9, _E10 = (1.0 / math.factorial(k) for k in range(2, 11))
-_LN2 = math.log(2.0)
-_SQRT2 = math.sqrt(2.0)
 _RHO2_LOW, _RHO2_HIGH = 0.05**2, 1.5**2  # (r / r_ff)^2 beyond which weight and margin are constant
-
-
-@njit(cache=True, inline="always", error_model="numpy")
-def _exp(x):
-    """exp(x) for |x| <= 104 (below -104, exp(-104): single precision rounds either to 0)."""
-    t = max(x, -104.0) * (1.0 / 512.0)
-    p = ((((((((_E10 * t + _E9) * t + _E8) * t + _E7) * t + _E6) * t + _E5) * t + _E4) * t + _E3) * t + _E2) * t
-    p = (p + 1.0) * t + 1.0
-    for _ in range(9):
-        p *= p
-    return p
-
-
-@njit(cache=True, inline="always", error_model="numpy")
-def _exp32(x):
-    """exp in single precision, as ``kernel_math._exp32`` (the exact value, rounded)."""
-    return float(np.float32(_exp(float(np.float32(x)))))
-
-
-@njit(cache=True, inline="always", error_model="numpy")
-def _log(q):
-    """ln q for 2**-15 <= q <= 2."""
-    k = 0.0
-    if q >= _SQRT2:
-        q *= 0.5
-        k = 1.0
-    if q * 256.0 < _SQRT2:
-        q *= 256.0
-        k -= 8.0
-    if q * 16.0 < _SQRT2:
-        q *= 16.0
-        k -= 4.0
-    if q * 4.0 < _SQRT2:
-        q *= 4.0
-        k -= 2.0
-    if q * 2.0 < _SQRT2:
-        q *= 2.0
-        k -= 1.0
-    s = (q - 1.0) / (q + 1.0)  # |s| <= 0.1716: the terms beyond s**19 are below 1e-16
-    s2 = s * s
-    series = 2.0 / 19.0
-    for d in (17.0, 15.0, 13.0, 11.0, 9.0, 7.0, 5.0, 3.0, 1.0):
-        series = series * s2 + 2.0 / d
-    return k * _LN2 + s * series
-
-
-@njit(cache=True, inline="always", error_model="numpy")
-def _atan(x):
-    """``kernel_math._atan`` with selects for branches (the same operations, the same value)."""
-    a = abs(x)
-    big = a > _TAN_3PI_8
-    mid = a > _TAN_PI_8
-    y = -1.0 / a if big else ((a - 1.0) / (a + 1.0) if mid else a)
-    base = 0.5 * math.pi if big else (0.25 * math.pi if mid else 0.0)
-    z = y * y
-    poly = ((((((((_A8 * z + _A7) * z + _A6) * z + _A5) * z + _A4) * z + _A3) * z + _A2) * z + _A1) * z) + _A0
-    return math.copysign(base + y * poly, x)
-
-
-@njit(cache=True, inline="always", error_model="numpy")
-def _abs_atan2(r, f):
-    """|atan2(r, f)| [rad], with atan2's signed zeros: pi behind (f < 0 or f = -0), 0 at r = 0 ahead."""
-    ar, af = abs(r), abs(f)
-    steep = ar > af
-    a = _atan(min(ar, af) / max(ar, af))
-    if steep:
-        a = 0.5 * math.pi - a
-    back = math.copysign(1.0, f) < 0.0
-    if back:
-        a = math.pi - a
-    if ar == 0.0:
-        a = math.pi if back else 0.0
-    return a
-
-
-@njit(cache=True, inline="always", error_model="numpy")
-def _quadratic(angle, half_scan, k, cap, knee):
-    """``kernel_math._quadratic``."""
-    a = abs(angle)
-    if half_scan > 0.0:
-        a = max(a - half_scan, 0.0)
-    beyond = max(a - knee, 0.0)
-    return min(k * (a * a - beyond * beyond), cap)
-
-
-@njit(cache=True, inline="always", error_model="numpy")
-def _primitive(x, sqrt_k, knee, floor, half_scan):
-    """``kernel_math._primitive`` (its erf, A&S 7.1.26, with this module's exponential)."""
-    ax = abs(x)
-    flat = 0.0
-    if half_scan > 0.0:
-        flat = min(ax, half_scan)
-        ax = max(ax - half_scan, 0.0)
-    inner = min(ax, knee)
-    e = inner * sqrt_k
-    t = 1.0 / (_ERF_P * e + 1.0)
-    poly = _ERF_A0 * t
-    poly = (poly + _ERF_A1) * t
-    poly = (poly + _ERF_A2) * t
-    poly = (poly + _ERF_A3) * t
-    poly = (poly + _ERF_A4) * t
-    erf = 1.0 - poly * _exp32(-(e * e))
-    value = erf * (_HALF_SQRT_PI / sqrt_k) + (ax - inner) * floor + flat
-    return math.copysign(value, x)
-
-
-@njit(cache=True, inline="always", error_model="numpy")
-def _margin(log_rho):
-    """``compiled._margin``."""
-    if log_rho <= c._K0:
-        m = c._N0
-    elif log_rho < c._K1:
-        m = c._N0 + (c._N1 - c._N0) * (log_rho - c._K0) / (c._K1 - c._K0)
-    elif log_rho < c._K2:
-        m = c._N1 + (c._N2 - c._N1) * (log_rho - c._K1) / (c._K2 - c._K1)
-    elif log_rho < c._K3:
-        m = c._N2 + (c._N3 - c._N2) * (log_rho - c._K2) / (c._K3 - c._K2)
-    else:
-        m = c._N3
-    return _exp(m)
 
 
 @njit(cache=True)
@@ -244,11 +97,7 @@ def _loop(p, x, y, z, spatial_peak, out, synthetic, sector):
         elevation = _atan(u / (horizontal + c._TINY_M)) + tilt
         if sector:
             # the azimuth part, faded towards the zenith (compiled._horizontal, _azimuth_part)
-            a_h = _quadratic(_abs_atan2(r, f), h_half, kh, h_cap, h_knee)
-            v = max(abs(u) - half_length, 0.0)
-            v = v * v + h2
-            w = h2 / v if v > 0.0 else 1.0
-            part = a_h * min(w * _FADE, 1.0)
+            part = _quadratic(_abs_atan2(r, f), h_half, kh, h_cap, h_knee) * _fade(h2, u, half_length)
             t = min(_quadratic(elevation, v_half, kv, sla, math.inf) + part, cap)
         else:
             part = 0.0

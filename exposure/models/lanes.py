@@ -2,8 +2,9 @@ r"""The compiled kernel in SIMD lanes: one panel or omni emitter at many points 
 
 Most emitters on a roof are panels and omnis: the synthetic or spherical model with a sector or
 omni pattern. For them, :func:`lane_densities` evaluates the formulas of
-:mod:`exposure.models.compiled` (the same operations in the same order) in a loop that LLVM
-turns into vector instructions, eight points at once on AVX-512, instead of one. The other
+:mod:`exposure.models.compiled` (the same operations in the same order, but for the gain's
+exponential and the azimuth's arctangent, polynomials here) in a loop that LLVM turns into
+vector instructions, eight points at once on AVX-512, instead of one. The other
 families (end-fire, aperture, dish and tabulated patterns) stay on the scalar path;
 :func:`in_lanes` tells them apart.
 
@@ -143,7 +144,7 @@ def lane_densities(p, x, y, z, spatial_peak, out):
     r"""One emitter's power density at each point, in SIMD lanes: ``out[i]`` [W/m²].
 
     The value of :func:`exposure.models.compiled.density_at` at each point, for an emitter
-    :func:`in_lanes` accepts (within 2·10⁻⁷ relative: the single-precision exponential's last
+    :func:`in_lanes` accepts, within 3·10⁻⁷ relative (a single-precision exponential's last
     digit may round the other way; the rest agrees to 10⁻¹²).
 
     Parameters

@@ -166,9 +166,8 @@ def _cumulative(tables, base, n, k, alpha, step):
 
 
 @njit(cache=True, inline="always")
-def _elevation_integral(p, tables, part, e_part, low, high):
-    """``Pattern.elevation_integral`` at one point (sector, omni, tabulated envelope); *e_part* is
-    ``_exp32(-part)`` where the caller has it, else negative."""
+def _elevation_integral(p, tables, part, low, high):
+    """``Pattern.elevation_integral`` at one point (sector, omni, tabulated envelope)."""
     code = p[PATTERN]
     if code == PATTERN_TABULATED:
         levels = p[T_LEVELS]
@@ -185,8 +184,7 @@ def _elevation_integral(p, tables, part, e_part, low, high):
         knee, floor = p[S_KNEE], p[S_FLOOR]
         return _primitive(high + tilt, sqrt_k, knee, floor, 0.0) - _primitive(low + tilt, sqrt_k, knee, floor, 0.0)
     cap = p[S_CAP]
-    if e_part < 0.0:
-        e_part = _exp32(-part)
+    e_part = _exp32(-part)
     if part <= cap - sla:
         knee, floor = p[S_KNEE], p[S_FLOOR]
     else:
@@ -219,7 +217,7 @@ def _margin(log_rho):
 
 
 @njit(cache=True, inline="always")
-def _synthetic(p, tables, f, r, u, a_h, e_h, spatial_peak):
+def _synthetic(p, tables, f, r, u, a_h, spatial_peak):
     """``synthetic.synthetic_kernel`` (continuous, capped: the ``auto`` model) at one point."""
     scale, length, r_min = p[SCALE], p[LENGTH], p[R_MIN]
     h2 = f * f + r * r
@@ -237,8 +235,7 @@ def _synthetic(p, tables, f, r, u, a_h, e_h, spatial_peak):
     h = max(horizontal, r_min)
     low = _atan((u - 0.5 * length) / h)
     high = _atan((u + 0.5 * length) / h)
-    e_part = e_h if part == a_h else -1.0  # no zenith fade here: the column's exp(-a_h) serves
-    result = _elevation_integral(p, tables, part, e_part, low, high) * (scale / length) / h
+    result = _elevation_integral(p, tables, part, low, high) * (scale / length) / h
     if spatial_peak:
         result *= _margin(log_rho)
     if weight < 1.0:
@@ -297,18 +294,18 @@ def _density(p, tables, px, py, pz, spatial_peak):
     f -= p[AXES] * ox + p[AXES + 1] * oy + p[AXES + 2] * oz
     r -= p[AXES + 3] * ox + p[AXES + 4] * oy + p[AXES + 5] * oz
     u -= p[AXES + 6] * ox + p[AXES + 7] * oy + p[AXES + 8] * oz
-    return _local_density(p, tables, f, r, u, _horizontal(p, tables, f, r), -1.0, spatial_peak)
+    return _local_density(p, tables, f, r, u, _horizontal(p, tables, f, r), spatial_peak)
 
 
 @njit(cache=True)
-def _local_density(p, tables, f, r, u, a_h, e_h, spatial_peak):
-    """:func:`_density` from antenna-frame coordinates and the horizontal attenuation *a_h*
-    (*e_h*: ``_exp32(-a_h)`` where the caller has it, else negative). A function of its own,
-    not inlined: :func:`density_at` and :func:`density_column` call the one compiled body (the
-    first run compiles it once, 40 s less than twice; the call costs about 1 % a pair)."""
+def _local_density(p, tables, f, r, u, a_h, spatial_peak):
+    """:func:`_density` from antenna-frame coordinates and the horizontal attenuation *a_h*. A
+    function of its own, not inlined: :func:`density_at` and :func:`density_column` call the one
+    compiled body (the first run compiles it once, 40 s less than twice; the call costs about
+    1 % a pair)."""
     model = p[MODEL]
     if model == MODEL_SYNTHETIC:
-        s = _synthetic(p, tables, f, r, u, a_h, e_h, spatial_peak)
+        s = _synthetic(p, tables, f, r, u, a_h, spatial_peak)
     elif model == MODEL_ENDFIRE:
         s = _endfire(p, tables, f, r, u, a_h)
     elif model == MODEL_APERTURE:
@@ -398,8 +395,7 @@ def density_column(p, tables, px, py, z, spatial_peak, out):
     f -= p[AXES] * ox + p[AXES + 1] * oy + p[AXES + 2] * oz
     r -= p[AXES + 3] * ox + p[AXES + 4] * oy + p[AXES + 5] * oz
     a_h = _horizontal(p, tables, f, r)
-    e_h = _exp32(-a_h) if p[MODEL] == MODEL_SYNTHETIC and p[PATTERN] == PATTERN_SECTOR else -1.0
     for h in range(z.shape[0]):
         u = p[AXES + 6] * px + p[AXES + 7] * py + p[AXES + 8] * z[h]
         u -= p[AXES + 6] * ox + p[AXES + 7] * oy + p[AXES + 8] * oz
-        out[h] = _local_density(p, tables, f, r, u, a_h, e_h, spatial_peak)
+        out[h] = _local_density(p, tables, f, r, u, a_h, spatial_peak)

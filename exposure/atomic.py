@@ -56,20 +56,22 @@ def write_pair(document: str | Path, write_document: Callable[[Path], Any], mark
     """Write a document and the mark that vouches for it (a report and its JSON) as one unit.
 
     ``write_document(path)`` writes the document atomically (:func:`atomic_write_bytes`, or a
-    renderer that ends in it). The mark is removed first and renamed into place last, so that at no moment does a
-    mark stand beside a document of another input; temporary files that earlier killed runs
-    left are removed first. If the write is interrupted (an exception, Ctrl-C, or SIGTERM
-    turned into ``KeyboardInterrupt``) after the document is in place but before the mark,
-    the document is removed again: both or neither. Only ``kill -9`` in the instant between
-    the two renames can leave a document without its mark (never beside another's mark);
-    the next run replaces both.
+    renderer that ends in it). The old mark and then the old document are removed first, the
+    new document is renamed into place and the new mark last, so that at no moment does a mark
+    stand beside a document of another input, and a document never stands without its mark
+    but for an instant; temporary files that earlier killed runs left are removed first. If
+    the write is interrupted (an exception, Ctrl-C, or SIGTERM turned into
+    ``KeyboardInterrupt``) before the mark is in place, the new document is removed again:
+    both or neither. Only ``kill -9`` in the instant between the two renames can leave a
+    document without its mark (never beside another's mark); the next run replaces both.
     """
     document, mark = Path(document), Path(mark)
     for target in (document, mark):
         remove_leftovers(target)
     mark.unlink(missing_ok=True)
-    write_document(document)
+    document.unlink(missing_ok=True)  # the old input's: without its mark it vouches for nothing
     try:
+        write_document(document)
         atomic_write_bytes(mark, mark_data)
     except BaseException:
         document.unlink(missing_ok=True)

@@ -388,6 +388,35 @@ def test_outputs_get_the_usual_file_mode(tmp_path):
     assert stat.S_IMODE(path.stat().st_mode) == 0o644
 
 
+@pytest.mark.parametrize("stage", ["document", "mark"])
+def test_a_pair_interrupted_leaves_both_or_neither(tmp_path, monkeypatch, stage):
+    """Ctrl-C while the new report or its JSON is being written, over the pair of another input:
+    no report is left without its JSON (the old report lost its mark when the write began). A
+    random-moment kill in tests/test_faults.py once landed in the report's fsync and found the
+    old PDF alone."""
+    import exposure.atomic
+
+    document, mark = tmp_path / "r.pdf", tmp_path / "r.json"
+    document.write_bytes(b"old report")
+    mark.write_bytes(b"old mark")
+    write_bytes = exposure.atomic.atomic_write_bytes
+
+    def interrupted_at(target):
+        def write(path, data):
+            if path == target:
+                raise KeyboardInterrupt
+            return write_bytes(path, data)
+
+        return write
+
+    monkeypatch.setattr(exposure.atomic, "atomic_write_bytes", interrupted_at(mark if stage == "mark" else document))
+    with pytest.raises(KeyboardInterrupt):
+        exposure.atomic.write_pair(
+            document, lambda path: exposure.atomic.atomic_write_bytes(path, b"new report"), mark, b"new mark"
+        )
+    assert list(tmp_path.iterdir()) == []
+
+
 SECTIONS = (
     "Result at a glance",
     "Plan-view exposure map",
